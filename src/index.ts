@@ -1,0 +1,8 @@
+/**
+ * roadsieve public API: a table of contents. Each line re-exports one stage's public table; see
+ * DEVELOPERS.md for the pipeline these stages form.
+ */
+export * from "./core/index.js";
+export type * from "./recording/types.js";
+export type * from "./synth/types.js";
+export * from "./maneuvers/labels.js";

@@ -1,0 +1,60 @@
+/**
+ * Ground truth written by the traffic generator beside each recording. It is the yardstick for the
+ * maneuver and event detection (see DEVELOPERS.md, "Ground truth definitions").
+ */
+
+/** A lane change as executed by the generator. Times in seconds on the recording clock. */
+export interface TruthLaneChange {
+  trackId: number;
+  direction: "left" | "right";
+  /** Start and end of the lateral movement; tCross is when the vehicle centre crosses the marking. */
+  tStart: number;
+  tCross: number;
+  tEnd: number;
+  fromLane: number;
+  toLane: number;
+}
+
+/**
+ * A cut-in: another vehicle's lane change whose crossing puts it ahead of the ego in the ego's lane
+ * with a bumper-to-bumper gap no larger than the generator's cutInMaxGap (m).
+ */
+export interface TruthCutIn {
+  egoTrack: number;
+  cutterTrack: number;
+  /** Crossing time of the cutter (s). */
+  t: number;
+  /** Bumper-to-bumper gap from ego front to cutter rear at the crossing (m). */
+  gap: number;
+}
+
+/** A critical situation the generator planted on purpose. */
+export interface PlantedEvent {
+  kind: "hard-braking" | "tight-cut-in";
+  /** The vehicle that brakes hard, or that cuts in. */
+  trackId: number;
+  /** The vehicle directly affected (the follower), when there is one. */
+  affectedTrack?: number;
+  tStart: number;
+  tEnd: number;
+  /** Deceleration for hard braking (m/s², positive), gap at the crossing for tight cut-ins (m). */
+  magnitude: number;
+}
+
+/** Per-frame labels of one track, aligned with the track's samples. */
+export interface TrackTruth {
+  trackId: number;
+  /** Codes from LONGITUDINAL. */
+  longitudinal: Int8Array;
+  /** Codes from LATERAL. */
+  lateral: Int8Array;
+}
+
+export interface GroundTruth {
+  tracks: TrackTruth[];
+  laneChanges: TruthLaneChange[];
+  cutIns: TruthCutIn[];
+  planted: PlantedEvent[];
+  /** The parameters of the label definitions (thresholds, cutInMaxGap …) so that a detector can be judged fairly. */
+  definitions: Record<string, number>;
+}
