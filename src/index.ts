@@ -6,3 +6,5 @@ export * from "./core/index.js";
 export type * from "./recording/types.js";
 export type * from "./synth/types.js";
 export * from "./maneuvers/labels.js";
+export * from "./scene/slots.js";
+export type * from "./scenario/types.js";

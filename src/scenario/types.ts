@@ -1,0 +1,82 @@
+import type { ObjectKind } from "../recording/types.js";
+import type { LateralManeuver, LongitudinalManeuver } from "../maneuvers/labels.js";
+import type { SceneEventKind } from "../scene/slots.js";
+
+/** Criticality of a scenario: extremes over its window. */
+export interface ScenarioCriticality {
+  /** Minimum time-to-collision with the leader while closing (s); Infinity when never closing. */
+  minTtc: number;
+  /** Minimum time headway to the leader (s); Infinity when there is no leader. */
+  minThw: number;
+  /** Maximum deceleration rate to avoid a crash (m/s², positive); 0 when never closing. */
+  maxDrac: number;
+  /** Ego's peak deceleration (m/s², positive). */
+  maxDecel: number;
+  /** Which thresholds were crossed, e.g. "ttc", "thw", "harsh-braking". Empty when none. */
+  flags: string[];
+}
+
+/** One event between the ego and a neighbour inside the window. */
+export interface ScenarioEvent {
+  kind: SceneEventKind;
+  /** Time of the event on the recording clock (s). */
+  t: number;
+  /** Track id of the other vehicle. */
+  other: number;
+}
+
+/**
+ * A scenario: one window of one ego drive. Windows tile every drive without gaps or overlap, so the
+ * kilometres and seconds of all scenarios add up to the recorded vehicle-kilometres and hours.
+ */
+export interface Scenario {
+  /** Position in the catalogue (0-based). */
+  index: number;
+  /** Stable identifier "<recording>/<egoTrack>/<window>". */
+  id: string;
+  recording: string;
+  egoTrack: number;
+  egoKind: ObjectKind;
+  /** Ordinal of this window within the ego drive (0-based). */
+  window: number;
+  /** Sample indices into the ego track, [startFrame, endFrame]; the next window starts at endFrame. */
+  startFrame: number;
+  endFrame: number;
+  /** Start and end time on the recording clock (s). */
+  tStart: number;
+  tEnd: number;
+  /** Duration (s) and distance travelled (km) by the ego in the window. */
+  seconds: number;
+  km: number;
+  /** Mean ego speed (m/s). */
+  meanSpeed: number;
+  /** Ego lane at the start and at the end of the window (0 = rightmost). */
+  laneStart: number;
+  laneEnd: number;
+  /** Ego basic maneuvers in order of occurrence, consecutive repeats collapsed. */
+  lateral: LateralManeuver[];
+  longitudinal: LongitudinalManeuver[];
+  /** Share of the window's time each neighbour slot is occupied, in SLOTS order. */
+  slotOccupancy: number[];
+  events: ScenarioEvent[];
+  criticality: ScenarioCriticality;
+}
+
+/** Shape of the fixed scenario tensor. */
+export interface TensorShape {
+  steps: number;
+  actors: number;
+  channels: number;
+}
+
+/** All scenarios of a catalogue with their tensors packed in one array. */
+export interface ScenarioSet {
+  scenarios: Scenario[];
+  /** n × steps × actors × channels, row-major, float32. */
+  tensors: Float32Array;
+  shape: TensorShape;
+  /** Actor order (ego first, then SLOTS) and channel names, for labelling. */
+  actorNames: string[];
+  channelNames: string[];
+  warnings: string[];
+}
