@@ -1,0 +1,7 @@
+/** Kinematics: smoothing and differentiation of tracks, gap splitting, lane assignment. */
+export { savitzkyGolay, savitzkyGolayCoefficients } from "./savitzkyGolay.js";
+export type { SavitzkyGolayOptions } from "./savitzkyGolay.js";
+export { splitAtGaps } from "./splitAtGaps.js";
+export { deriveMotion, windowSamples, medianStep } from "./deriveMotion.js";
+export type { DeriveMotionOptions, Motion, TrackPositions } from "./deriveMotion.js";
+export { assignLanes, validateMarkings } from "./assignLanes.js";
