@@ -4,6 +4,7 @@
  */
 export * from "./core/index.js";
 export type * from "./recording/types.js";
+export * from "./kinematics/index.js";
 export type * from "./synth/types.js";
 export * from "./maneuvers/labels.js";
 export * from "./scene/slots.js";
