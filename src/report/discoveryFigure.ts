@@ -1,0 +1,78 @@
+import { FIGURE_CONFIG, PALETTE, baseLayout, round, type Figure } from "./figure.js";
+
+export interface DiscoverySeries {
+  name: string;
+  /** Cumulative vehicle-km at each point. */
+  km: ArrayLike<number>;
+  /** Distinct kinds seen (observed curve) or expected (rarefaction/extrapolation). */
+  count: ArrayLike<number>;
+  /** "observed" solid, "rarefied" dashed, "extrapolated" dotted. */
+  style: "observed" | "rarefied" | "extrapolated";
+  /** Optional lower/upper band. */
+  lower?: ArrayLike<number>;
+  upper?: ArrayLike<number>;
+}
+
+/**
+ * Discovery curves: distinct scenario types (or clusters) against vehicle-km, observed in recording
+ * order, expected by rarefaction, and extrapolated beyond the data; the estimated total as a line.
+ */
+export function discoveryFigure(series: DiscoverySeries[], asymptotes: { name: string; value: number }[] = [], title?: string): Figure {
+  const data: Record<string, unknown>[] = [];
+  series.forEach((s, i) => {
+    const colour = PALETTE[Math.floor(i / 3) % PALETTE.length];
+    const x = Array.from(s.km, (v) => round(v, 3));
+    if (s.lower && s.upper) {
+      data.push({
+        type: "scatter",
+        mode: "lines",
+        x: [...x, ...x.slice().reverse()],
+        y: [...Array.from(s.upper, (v) => round(v, 3)), ...Array.from(s.lower, (v) => round(v, 3)).reverse()],
+        fill: "toself",
+        fillcolor: "rgba(47,109,179,0.12)",
+        line: { width: 0 },
+        hoverinfo: "skip",
+        showlegend: false,
+      });
+    }
+    data.push({
+      type: "scatter",
+      mode: "lines",
+      name: s.name,
+      x,
+      y: Array.from(s.count, (v) => round(v, 3)),
+      line: { color: colour, dash: s.style === "observed" ? "solid" : s.style === "rarefied" ? "dash" : "dot", width: 2 },
+    });
+  });
+  const shapes = asymptotes.map((a) => ({
+    type: "line",
+    xref: "paper",
+    x0: 0,
+    x1: 1,
+    y0: a.value,
+    y1: a.value,
+    line: { color: "#6f7b87", dash: "longdash", width: 1 },
+  }));
+  const annotations = asymptotes.map((a) => ({
+    xref: "paper",
+    x: 1,
+    xanchor: "right",
+    y: a.value,
+    yanchor: "bottom",
+    text: `${a.name}: ${a.value.toFixed(1)}`,
+    showarrow: false,
+    font: { size: 11, color: "#4a5561" },
+  }));
+  return {
+    data,
+    layout: baseLayout(title ?? "Catalogue discovery: distinct scenario types against vehicle-km", {
+      xaxis: { title: { text: "vehicle-km" }, rangemode: "tozero" },
+      yaxis: { title: { text: "distinct kinds seen" }, rangemode: "tozero" },
+      shapes,
+      annotations,
+      legend: { orientation: "h", y: -0.2 },
+      height: 420,
+    }),
+    config: FIGURE_CONFIG,
+  };
+}

@@ -1,0 +1,134 @@
+import type { Figure } from "./figure.js";
+import { plotlySource } from "./plotlySource.js";
+
+/** Escape text for HTML element content and attribute values. */
+export function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
+}
+
+/** JSON that is safe inside a <script> element. */
+export function scriptJson(value: unknown): string {
+  return JSON.stringify(value).replace(/</g, "\\u003c").replace(/\u2028/g, "\\u2028").replace(/\u2029/g, "\\u2029");
+}
+
+/** A section of the report: heading, paragraphs (plain text), then figures and tables. */
+export interface ReportSection {
+  id: string;
+  heading: string;
+  paragraphs?: string[];
+  /** Bulleted items (plain text). */
+  bullets?: string[];
+  figures?: { figure: Figure; caption?: string }[];
+  tables?: ReportTable[];
+  /** Visual emphasis for cautions. */
+  tone?: "normal" | "caution";
+}
+
+export interface ReportTable {
+  caption?: string;
+  columns: string[];
+  rows: (string | number)[][];
+  /** Show at most this many rows, with a note saying how many were left out. */
+  maxRows?: number;
+}
+
+export interface ReportDocument {
+  title: string;
+  subtitle?: string;
+  /** Headline figures shown as tiles (label → value text). */
+  tiles?: { label: string; value: string }[];
+  sections: ReportSection[];
+  /** Provenance printed at the end (key → value). */
+  provenance: Record<string, string>;
+}
+
+const STYLE = `
+:root{--ink:#1d2733;--muted:#5b6673;--line:#dde2e8;--accent:#2f6db3;--alert:#b3261e;--bg:#ffffff;--panel:#f7f8fa}
+*{box-sizing:border-box}body{margin:0;font:14px/1.5 system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;color:var(--ink);background:var(--bg)}
+header{padding:28px 40px 18px;border-bottom:3px solid var(--accent)}
+header h1{margin:0;font-size:24px}header p{margin:4px 0 0;color:var(--muted)}
+nav{padding:8px 40px;border-bottom:1px solid var(--line);font-size:13px;position:sticky;top:0;background:#fff;z-index:2}
+nav a{margin-right:14px;color:var(--accent);text-decoration:none}
+main{padding:10px 40px 40px;max-width:1200px}
+section{margin:26px 0}section h2{font-size:18px;border-bottom:1px solid var(--line);padding-bottom:4px}
+.tiles{display:flex;flex-wrap:wrap;gap:12px;margin:18px 0}
+.tile{background:var(--panel);border:1px solid var(--line);border-radius:6px;padding:10px 14px;min-width:150px}
+.tile .v{font-size:20px;font-weight:600}.tile .l{color:var(--muted);font-size:12px}
+.caution{border-left:4px solid var(--alert);background:#fbf1f0;padding:8px 16px}
+figure{margin:14px 0}figcaption{color:var(--muted);font-size:12px}
+table{border-collapse:collapse;font-size:12px;margin:10px 0;width:100%}
+th,td{border:1px solid var(--line);padding:4px 6px;text-align:left;vertical-align:top}
+th{background:var(--panel);position:sticky;top:34px}td.num{text-align:right;font-variant-numeric:tabular-nums}
+.note{color:var(--muted);font-size:12px}
+footer{padding:16px 40px;border-top:1px solid var(--line);color:var(--muted);font-size:12px}
+footer dl{display:grid;grid-template-columns:max-content 1fr;gap:2px 12px;margin:0}footer dt{font-weight:600}
+footer dd{margin:0;word-break:break-all}
+`;
+
+function renderTable(t: ReportTable): string {
+  const max = t.maxRows ?? t.rows.length;
+  const shown = t.rows.slice(0, max);
+  const head = `<tr>${t.columns.map((c) => `<th>${escapeHtml(c)}</th>`).join("")}</tr>`;
+  const body = shown
+    .map((r) => `<tr>${r.map((v) => (typeof v === "number" ? `<td class="num">${escapeHtml(String(v))}</td>` : `<td>${escapeHtml(v)}</td>`)).join("")}</tr>`)
+    .join("\n");
+  const more = t.rows.length > max ? `<p class="note">${t.rows.length - max} more rows are in plan.csv / plan.json.</p>` : "";
+  return `${t.caption ? `<p class="note">${escapeHtml(t.caption)}</p>` : ""}<table>${head}\n${body}</table>${more}`;
+}
+
+/**
+ * Render a self-contained HTML page: plotly.js inlined, figures as JSON data, no network access
+ * needed to open it. Deterministic: the same document gives the same bytes.
+ */
+export function renderHtml(doc: ReportDocument): string {
+  const figures: { id: string; figure: Figure }[] = [];
+  const sections = doc.sections
+    .map((s) => {
+      const parts: string[] = [`<section id="${escapeHtml(s.id)}"${s.tone === "caution" ? ' class="caution"' : ""}>`, `<h2>${escapeHtml(s.heading)}</h2>`];
+      for (const p of s.paragraphs ?? []) parts.push(`<p>${escapeHtml(p)}</p>`);
+      if (s.bullets && s.bullets.length > 0) parts.push(`<ul>${s.bullets.map((b) => `<li>${escapeHtml(b)}</li>`).join("")}</ul>`);
+      for (const f of s.figures ?? []) {
+        const id = `fig-${figures.length}`;
+        figures.push({ id, figure: f.figure });
+        parts.push(`<figure><div id="${id}" class="plot"></div>${f.caption ? `<figcaption>${escapeHtml(f.caption)}</figcaption>` : ""}</figure>`);
+      }
+      for (const t of s.tables ?? []) parts.push(renderTable(t));
+      parts.push("</section>");
+      return parts.join("\n");
+    })
+    .join("\n");
+  const nav = doc.sections.map((s) => `<a href="#${escapeHtml(s.id)}">${escapeHtml(s.heading)}</a>`).join("");
+  const tiles = doc.tiles?.length
+    ? `<div class="tiles">${doc.tiles.map((t) => `<div class="tile"><div class="v">${escapeHtml(t.value)}</div><div class="l">${escapeHtml(t.label)}</div></div>`).join("")}</div>`
+    : "";
+  const prov = Object.entries(doc.provenance)
+    .map(([k, v]) => `<dt>${escapeHtml(k)}</dt><dd>${escapeHtml(v)}</dd>`)
+    .join("");
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${escapeHtml(doc.title)}</title>
+<style>${STYLE}</style>
+<script>${plotlySource().replace(/<\/script/gi, "<\\/script")}</script>
+</head>
+<body>
+<header><h1>${escapeHtml(doc.title)}</h1>${doc.subtitle ? `<p>${escapeHtml(doc.subtitle)}</p>` : ""}</header>
+<nav>${nav}</nav>
+<main>
+${tiles}
+${sections}
+</main>
+<footer><dl>${prov}</dl></footer>
+<script type="application/json" id="roadsieve-figures">${scriptJson(figures)}</script>
+<script>
+(function () {
+  var figs = JSON.parse(document.getElementById("roadsieve-figures").textContent);
+  figs.forEach(function (f) { Plotly.newPlot(f.id, f.figure.data, f.figure.layout, f.figure.config || {}); });
+})();
+</script>
+</body>
+</html>
+`;
+}
