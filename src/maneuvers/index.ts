@@ -1,0 +1,9 @@
+/** Basic maneuvers per track: longitudinal and lateral labels and segments. */
+export { LONGITUDINAL, LATERAL, LON_KEEP, LON_ACCELERATE, LON_DECELERATE, LAT_KEEP, LAT_LEFT, LAT_RIGHT } from "./labels.js";
+export type { LongitudinalManeuver, LateralManeuver } from "./labels.js";
+export { detectManeuvers } from "./detectManeuvers.js";
+export { detectAllManeuvers } from "./detectAllManeuvers.js";
+export { resolveManeuverOptions, MANEUVER_DEFAULTS } from "./options.js";
+export type { ManeuverOptions, ResolvedManeuverOptions } from "./options.js";
+export type { TrackManeuvers, ManeuverSegment, LaneChangeShape, SmoothedMotion } from "./types.js";
+export { fitPolynomial } from "./fitPolynomial.js";
