@@ -9,3 +9,4 @@ export type * from "./synth/types.js";
 export * from "./maneuvers/labels.js";
 export * from "./scene/slots.js";
 export type * from "./scenario/types.js";
+export * from "./cluster/index.js";

@@ -1,0 +1,68 @@
+import { InputError } from "../core/errors.js";
+import type { Matrix } from "../core/matrix.js";
+
+/** Boundary checks shared by the cluster stage; messages quote the value and what was expected. */
+
+export function checkMatrix(X: Matrix, name = "X", minRows = 1): void {
+  if (!X || typeof X !== "object" || !(X.data instanceof Float64Array))
+    throw new InputError(`${name} should be a Matrix { data: Float64Array, rows, cols }`);
+  if (!Number.isInteger(X.rows) || !Number.isInteger(X.cols) || X.rows < 0 || X.cols < 1)
+    throw new InputError(`${name}: rows=${X.rows}, cols=${X.cols} should be integers with cols >= 1`);
+  if (X.data.length !== X.rows * X.cols)
+    throw new InputError(`${name}: data.length=${X.data.length} should equal rows*cols=${X.rows * X.cols}`);
+  if (X.rows < minRows) throw new InputError(`${name}: n_samples=${X.rows} should be >= ${minRows}`);
+  const a = X.data;
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i]!;
+    if (v - v !== 0)
+      throw new InputError(`${name}: row ${Math.floor(i / X.cols)}, column ${i % X.cols} is ${v}; expected a finite number`, {
+        row: Math.floor(i / X.cols),
+        column: String(i % X.cols),
+        value: v,
+      });
+  }
+}
+
+export function checkInt(name: string, v: unknown, min: number, max = Infinity): number {
+  if (typeof v !== "number" || !Number.isInteger(v) || v < min || v > max)
+    throw new InputError(
+      `${name}=${JSON.stringify(v)} should be an integer ${max === Infinity ? `>= ${min}` : `in [${min}, ${max}]`}`,
+      { value: v },
+    );
+  return v;
+}
+
+export function checkNumber(name: string, v: unknown, min: number, inclusive = true): number {
+  if (typeof v !== "number" || !Number.isFinite(v) || (inclusive ? v < min : v <= min))
+    throw new InputError(`${name}=${JSON.stringify(v)} should be a finite number ${inclusive ? ">=" : ">"} ${min}`, { value: v });
+  return v;
+}
+
+export function checkWeights(w: Float64Array | undefined, n: number): Float64Array | null {
+  if (w === undefined || w === null) return null;
+  if (!(w instanceof Float64Array)) throw new InputError("weights should be a Float64Array (one weight per row)");
+  if (w.length !== n) throw new InputError(`weights.length=${w.length} should equal n_samples=${n}`);
+  for (let i = 0; i < n; i++) {
+    const v = w[i]!;
+    if (!(v >= 0) || !Number.isFinite(v))
+      throw new InputError(`weights[${i}]=${v} should be a finite number >= 0`, { row: i, column: "weight", value: v });
+  }
+  return w;
+}
+
+export function checkLabels(labels: Int32Array, n: number, name = "labels"): number {
+  if (!(labels instanceof Int32Array)) throw new InputError(`${name} should be an Int32Array`);
+  if (labels.length !== n) throw new InputError(`${name}.length=${labels.length} should equal n_samples=${n}`);
+  let max = -1;
+  for (let i = 0; i < n; i++) {
+    const l = labels[i]!;
+    if (l < -1) throw new InputError(`${name}[${i}]=${l} should be >= -1 (-1 = noise)`, { row: i, value: l });
+    if (l > max) max = l;
+  }
+  return max + 1;
+}
+
+export function checkThreads(v: unknown): number | "auto" {
+  if (v === "auto") return v;
+  return checkInt("threads", v, 1, 256);
+}
