@@ -19,6 +19,13 @@ export interface Road {
   speedLimit?: number;
   /** Observed stretch along x, [start, end] (m), when known. */
   xRange?: [number, number];
+  /**
+   * Driving direction in the file's coordinates. "-x" (traffic moves towards smaller x, e.g. one
+   * carriageway of an aerial image) makes the reader rotate everything by 180° into the road frame
+   * (x' = -x, y' = -y, markings mirrored). Default "+x". A Road inside a Recording is always in the
+   * road frame, i.e. "+x".
+   */
+  direction?: "+x" | "-x";
 }
 
 /** Object classes the tools know; anything else is kept as "other". */

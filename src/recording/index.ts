@@ -1,0 +1,13 @@
+/** Recording: reading tracks files (CSV, Parquet) and road descriptions, validated, into the road frame. */
+export type { Road, ObjectKind, Track, RejectedTrack, Recording } from "./types.js";
+export { readRecording, defaultId } from "./readRecording.js";
+export type { ReadRecordingOptions } from "./readRecording.js";
+export type { OnBadTrack, LaneSource } from "./buildTracks.js";
+export type { TracksFormat } from "./scanTable.js";
+export { readRoad, validateRoad, writeRoad, roadToRoadFrame } from "./readRoad.js";
+export { writeTracks, tracksCsv } from "./writeTracks.js";
+export { TRACK_COLUMNS, resolveColumns } from "./columns.js";
+export type { TrackColumn, ColumnMapping, ResolvedColumns } from "./columns.js";
+export { unitFactors, LENGTH_TO_M, SPEED_TO_MS, ACCELERATION_TO_MS2, TIME_TO_S } from "./units.js";
+export type { UnitMapping, UnitFactors, LengthUnit, SpeedUnit, AccelerationUnit, TimeUnit } from "./units.js";
+export { DEFAULT_SIZES, KIND_NAMES } from "./kinds.js";
