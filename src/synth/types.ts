@@ -13,6 +13,11 @@ export interface TruthLaneChange {
   tEnd: number;
   fromLane: number;
   toLane: number;
+  /**
+   * True when only part of [tStart, tEnd] lies inside the track's recorded span (the vehicle entered
+   * or left the observed section, or the recording started or ended, during the movement).
+   */
+  partial?: boolean;
 }
 
 /**
