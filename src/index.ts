@@ -5,6 +5,7 @@
 export * from "./core/index.js";
 export type * from "./recording/types.js";
 export * from "./kinematics/index.js";
+export * from "./recording/index.js";
 export type * from "./synth/types.js";
 export * from "./synth/index.js";
 export * from "./maneuvers/labels.js";

@@ -11,7 +11,8 @@ import type { DeriveMotionOptions, Motion } from "../kinematics/deriveMotion.js"
 import type { TrackColumn } from "./columns.js";
 import { DEFAULT_SIZES, KIND_CODES, KIND_EMPTY } from "./kinds.js";
 import type { RawTable } from "./scanTable.js";
-import type { UnitFactors } from "./units.js";
+import { toSI } from "./units.js";
+import type { Ratio, UnitFactors } from "./units.js";
 import type { ObjectKind, RejectedTrack, Road, Track } from "./types.js";
 
 export type OnBadTrack = "reject" | "fail";
@@ -108,12 +109,13 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
   const useFrame = col.t === undefined;
   const timeCol: TrackColumn = useFrame ? "frame" : "t";
   const tRaw = useFrame ? col.frame! : col.t!;
-  const tFactor = useFrame ? 1 / frameRate : u.time;
+  const tRatio: Ratio = useFrame ? [1, frameRate] : u.time;
 
   const tracks: Track[] = [];
   const problems: Problem[] = [];
   const derivedCounts: Record<string, number> = {};
   let sizeDefaulted = 0;
+  let laneDisagree = 0;
   const kindDefaulted = { empty: 0, unrecognised: 0 };
   const progress = o.progress ? throttleProgress(o.progress) : undefined;
 
@@ -175,12 +177,11 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
     const y = new Float64Array(m);
     const px = col.x!;
     const py = col.y!;
-    const pf = u.position * mirror;
     for (let k = 0; k < m; k++) {
       const i = idx[k]!;
-      t[k] = tRaw[i]! * tFactor;
-      x[k] = px[i]! * pf;
-      y[k] = py[i]! * pf;
+      t[k] = toSI(tRaw[i]!, tRatio);
+      x[k] = mirror * toSI(px[i]!, u.position);
+      y[k] = mirror * toSI(py[i]!, u.position);
     }
 
     // Motion: the file's columns where present and finite for the whole track, derived otherwise.
@@ -188,7 +189,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
     const motion: Partial<Record<"vx" | "vy" | "ax" | "ay", Float64Array>> = {};
     for (const c of KINEMATIC) {
       const src = col[c];
-      const f = (c[0] === "v" ? u.speed : u.acceleration) * mirror;
+      const f = c[0] === "v" ? u.speed : u.acceleration;
       if (src !== undefined) {
         const out = new Float64Array(m);
         let ok = true;
@@ -198,7 +199,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
             ok = false;
             break;
           }
-          out[k] = v * f;
+          out[k] = mirror * toSI(v, f);
         }
         if (ok) {
           motion[c] = out;
@@ -243,7 +244,11 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
           });
         lane[k] = v;
       }
-    } else lane = assignLanes(y, o.roadFrame.laneMarkings);
+    } else {
+      lane = assignLanes(y, o.roadFrame.laneMarkings);
+      const src = col.lane;
+      if (src) for (let k = 0; k < m; k++) if (src[idx[k]!] !== lane[k]) laneDisagree++;
+    }
 
     // Kind and size (per track: the first row's kind, the median of the given sizes).
     let kind: ObjectKind = "other";
@@ -253,8 +258,8 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
       else if (code === KIND_EMPTY) kindDefaulted.empty++;
       else kindDefaulted.unrecognised++;
     }
-    let length = medianPositive(col.length, idx) * u.size;
-    let width = medianPositive(col.width, idx) * u.size;
+    let length = toSI(medianPositive(col.length, idx), u.size);
+    let width = toSI(medianPositive(col.width, idx), u.size);
     if (!(length > 0) || !(width > 0)) {
       sizeDefaulted++;
       if (!(length > 0)) length = DEFAULT_SIZES[kind].length;
@@ -297,6 +302,12 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
     const first = problems.slice().sort((a, b) => a.row - b.row)[0]!;
     warnings.push(
       `REJECTED ${rejected.length} of ${trackIds.length} tracks (${rowsLost} rows) that failed validation; first: track ${first.trackId}, row ${first.row}: ${first.reason}. See Recording.rejected`,
+    );
+  }
+  if (laneDisagree > 0) {
+    const kept = tracks.reduce((s, t) => s + t.t.length, 0);
+    warnings.push(
+      `column "${names.lane}" ignored: lanes are assigned from road.laneMarkings, and the file's lane ids differ from them in ${laneDisagree} of ${kept} rows (option lanes: "file" uses the file's ids)`,
     );
   }
   for (const c of KINEMATIC)

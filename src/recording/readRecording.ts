@@ -36,8 +36,8 @@ export interface ReadRecordingOptions {
   onBadTrack?: OnBadTrack;
   /**
    * Where lane indices come from: "markings" assigns them from road.laneMarkings (a lane column in
-   * the file is then ignored, with a warning); "file" uses the file's lane column as-is (integers,
-   * 0 = rightmost lane, -1 = outside). Default "markings".
+   * the file is then only compared, with a warning when it disagrees); "file" uses the file's lane
+   * column as-is (integers, 0 = rightmost lane, -1 = outside). Default "markings".
    */
   lanes?: LaneSource;
   /**
@@ -85,15 +85,10 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
 
   progress?.({ stage: "read", done: 0, total: 1, message: `reading ${tracksPath}` });
   const checksum = await sha256File(tracksPath);
-  const raw = await scanTable(tracksPath, format, o.mapping, { lane: o.lanes === "file" });
+  const raw = await scanTable(tracksPath, format, o.mapping);
   if (o.lanes === "file" && raw.names.lane === undefined)
     throw new InputError(`lanes: "file" needs a lane column; the file has none (map it with mapping.lane)`, { file: tracksPath });
   progress?.({ stage: "read", done: 1, total: 1, message: `${raw.rows} rows` });
-  if (raw.ignoredLane !== undefined)
-    warnings.push(
-      `column "${raw.ignoredLane}" ignored: lanes are assigned from road.laneMarkings (option lanes: "file" uses the file's lane ids)`,
-    );
-
   const roadFrame = roadToRoadFrame(road);
   const id = o.id ?? defaultId(tracksPath);
   const built = buildTracks(raw, {

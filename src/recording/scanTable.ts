@@ -25,8 +25,6 @@ export interface RawTable {
   names: ResolvedColumns;
   /** Distinct kind names that were not recognised (at most 20). */
   unrecognisedKinds: string[];
-  /** The file's lane column when it exists but was not asked for (lanes come from the markings). */
-  ignoredLane?: string;
 }
 
 /** Which of our columns are scanned as numbers. */
@@ -38,7 +36,6 @@ export function scanTable(
   file: string,
   format: TracksFormat,
   mapping: ColumnMapping | undefined,
-  want: { lane: boolean },
 ): Promise<RawTable> {
   return withDuckDB(async (c) => {
     const source =
@@ -55,8 +52,6 @@ export function scanTable(
     for (const r of described) types.set(String(r.column_name), String(r.column_type));
     const fileColumns = [...types.keys()].filter((n) => !(format === "parquet" && n === "file_row_number"));
     const names = resolveColumns(fileColumns, mapping, file);
-    const ignoredLane = want.lane ? undefined : names.lane;
-    if (!want.lane) delete names.lane;
 
     // One SELECT: the row position, every numeric column as DOUBLE, kind as a code, and a bit mask
     // of the cells that are present but not numbers (bit j for the j-th scanned column).
@@ -126,7 +121,7 @@ export function scanTable(
         unrecognisedKinds = rows.map((r) => String(r.k));
       }
     }
-    return { file, rows: data.rows, row, columns, empty, names, unrecognisedKinds, ignoredLane };
+    return { file, rows: data.rows, row, columns, empty, names, unrecognisedKinds };
   });
 }
 

@@ -25,22 +25,30 @@ export interface UnitMapping {
   frameRate?: number;
 }
 
-// Factors to SI are exact by definition: cm, mm (SI prefixes); international foot = 0.3048 m exactly
-// (international yard and pound agreement, 1959); km/h = 1000 m / 3600 s; mile = 1609.344 m exactly,
-// so mph = 0.44704 m/s; standard gravity g = 9.80665 m/s² (3rd CGPM, 1901).
-export const LENGTH_TO_M: Readonly<Record<LengthUnit, number>> = { m: 1, cm: 0.01, mm: 0.001, ft: 0.3048 };
-export const SPEED_TO_MS: Readonly<Record<SpeedUnit, number>> = { "m/s": 1, "km/h": 1 / 3.6, mph: 0.44704, "ft/s": 0.3048 };
-export const ACCELERATION_TO_MS2: Readonly<Record<AccelerationUnit, number>> = { "m/s2": 1, "ft/s2": 0.3048, g: 9.80665 };
-export const TIME_TO_S: Readonly<Record<TimeUnit, number>> = { s: 1, ms: 0.001 };
+// Factors to SI, exact by definition, kept as integer ratios [multiply, divide] so that converting a
+// decimal value rounds once (v * mul / div) instead of multiplying by an inexact binary factor:
+// cm, mm (SI prefixes); international foot = 0.3048 m exactly (international yard and pound
+// agreement, 1959); km/h = 1000 m / 3600 s = 5/18 m/s; mile = 1609.344 m exactly, so
+// mph = 0.44704 m/s = 1397/3125 m/s; standard gravity g = 9.80665 m/s² (3rd CGPM, 1901).
+export type Ratio = readonly [mul: number, div: number];
+export const LENGTH_TO_M: Readonly<Record<LengthUnit, Ratio>> = { m: [1, 1], cm: [1, 100], mm: [1, 1000], ft: [3048, 10000] };
+export const SPEED_TO_MS: Readonly<Record<SpeedUnit, Ratio>> = { "m/s": [1, 1], "km/h": [5, 18], mph: [1397, 3125], "ft/s": [3048, 10000] };
+export const ACCELERATION_TO_MS2: Readonly<Record<AccelerationUnit, Ratio>> = { "m/s2": [1, 1], "ft/s2": [3048, 10000], g: [980665, 100000] };
+export const TIME_TO_S: Readonly<Record<TimeUnit, Ratio>> = { s: [1, 1], ms: [1, 1000] };
 
-/** Conversion factors to SI, validated. */
+/** Conversion ratios to SI, validated. */
 export interface UnitFactors {
-  position: number;
-  size: number;
-  speed: number;
-  acceleration: number;
-  time: number;
+  position: Ratio;
+  size: Ratio;
+  speed: Ratio;
+  acceleration: Ratio;
+  time: Ratio;
   frameRate: number | undefined;
+}
+
+/** v in the file's unit → SI, rounding once for decimal inputs. */
+export function toSI(v: number, r: Ratio): number {
+  return r[0] === 1 ? (r[1] === 1 ? v : v / r[1]) : (v * r[0]) / r[1];
 }
 
 export function unitFactors(units: UnitMapping | undefined): UnitFactors {
@@ -48,9 +56,9 @@ export function unitFactors(units: UnitMapping | undefined): UnitFactors {
   const known = new Set(["position", "size", "speed", "acceleration", "time", "frameRate"]);
   for (const k of Object.keys(u))
     if (!known.has(k)) throw new InputError(`units.${k} is not a unit setting; expected one of ${[...known].join(", ")}`);
-  const pick = <U extends string>(name: string, table: Readonly<Record<U, number>>, value: U | undefined, dflt: U): number => {
+  const pick = <U extends string>(name: string, table: Readonly<Record<U, Ratio>>, value: U | undefined, dflt: U): Ratio => {
     const v = value ?? dflt;
-    const f = (table as Record<string, number>)[v];
+    const f = (table as Record<string, Ratio>)[v];
     if (f === undefined)
       throw new InputError(`units.${name}=${JSON.stringify(v)} should be one of ${Object.keys(table).map((k) => JSON.stringify(k)).join(", ")}`);
     return f;
