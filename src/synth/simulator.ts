@@ -631,17 +631,14 @@ export class Simulator {
     const o = this.o;
     const [r0, r1] = this.setup.recordRange!;
     const lo = r0 + 0.05 * (r1 - r0);
-    const hi = r0 + 0.5 * (r1 - r0);
+    const hi = r0 + 0.6 * (r1 - r0);
     const r = this.rngPlant;
-    // Planted cut-ins are brisk: the duration distribution truncated to [2, 5] s.
-    const d = sampleLaneChangeDuration(
-      r,
-      o.laneChangeDurationMean,
-      o.laneChangeDurationSd,
-      Math.max(2, o.laneChangeDurationMin),
-      Math.max(Math.max(2, o.laneChangeDurationMin), Math.min(5, o.laneChangeDurationMax)),
-    );
-    const candidates: [Vehicle, number, Vehicle, number][] = [];
+    // Planted cut-ins are brisk: durations in [2, 5] s (within the configured bounds). The drawn
+    // duration is kept when it gives a crossing gap in range, else the nearest one that does.
+    const dMin = Math.max(2, o.laneChangeDurationMin);
+    const dMax = Math.max(dMin, Math.min(5, o.laneChangeDurationMax));
+    const d = sampleLaneChangeDuration(r, o.laneChangeDurationMean, o.laneChangeDurationSd, dMin, dMax);
+    const candidates: [Vehicle, number, Vehicle, number, number][] = [];
     for (const u of this.vehicles) {
       if (u.x < lo || u.x > hi || u.lcTo >= 0 || u.held || !u.allowLaneChange || u.v < 15 || t < u.brakeUntilMs) continue;
       if (u.a < -0.5) continue;
@@ -652,20 +649,33 @@ export class Simulator {
         const k = upperBound(list, u.x);
         const nl = k < list.length ? list[k]! : null;
         const nf = k > 0 ? list[k - 1]! : null;
-        if (!nf || nf.lcTo >= 0 || nf.lane !== tl || nf.v < 15 || u.v < nf.v - 2) continue;
-        if (nl && (gapBetween(u, nl) < 25 || nl.v < u.v - 1)) continue;
+        if (!nf || nf.lcTo >= 0 || nf.lane !== tl || nf.held || nf.v < 15 || u.v < nf.v - 3) continue;
+        if (nl && (gapBetween(u, nl) < 20 || nl.v < u.v - 2)) continue;
         const back = gapBetween(nf, u);
         if (back < 2) continue;
         let busy = false;
         for (const w of list) if (w.lcTo === tl && w.lane !== tl && Math.abs(w.x - u.x) < 60) busy = true;
         if (busy) continue;
-        const predicted = back + (u.v - nf.v) * 0.5 * d;
-        if (predicted >= o.tightCutInGapMin && predicted <= o.tightCutInGapMax) candidates.push([u, tl, nf, predicted]);
+        // Predicted gap at the crossing (about mid-movement) at constant speeds: back + dv · D / 2.
+        const dv = u.v - nf.v;
+        const gapAt = (dur: number): number => back + dv * 0.5 * dur;
+        let dur = d;
+        if (gapAt(dur) < o.tightCutInGapMin || gapAt(dur) > o.tightCutInGapMax) {
+          if (Math.abs(dv) < 1e-9) continue;
+          const dA = (2 * (o.tightCutInGapMin - back)) / dv;
+          const dB = (2 * (o.tightCutInGapMax - back)) / dv;
+          const feasLo = Math.max(dMin, Math.min(dA, dB));
+          const feasHi = Math.min(dMax, Math.max(dA, dB));
+          if (feasLo > feasHi) continue;
+          dur = Math.round(Math.min(feasHi, Math.max(feasLo, d)) * 500) / 500;
+          if (gapAt(dur) < o.tightCutInGapMin - 0.05 || gapAt(dur) > o.tightCutInGapMax + 0.05) continue;
+        }
+        candidates.push([u, tl, nf, gapAt(dur), dur]);
       }
     }
     if (candidates.length === 0) return false;
-    const [u, tl, f, predicted] = candidates[r.int(candidates.length)]!;
-    const durMs = Math.round(d * 1000);
+    const [u, tl, f, predicted, dur] = candidates[r.int(candidates.length)]!;
+    const durMs = Math.round(dur * 1000);
     u.hiddenFrom = f;
     u.plantedIndex = this.planted.length;
     this.planted.push({ kind: "tight-cut-in", vehicle: u, affected: f, startMs: t, endMs: t + durMs, magnitude: predicted });
