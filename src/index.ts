@@ -11,4 +11,7 @@ export * from "./synth/index.js";
 export * from "./maneuvers/labels.js";
 export * from "./scene/slots.js";
 export type * from "./scenario/types.js";
+export * from "./maneuvers/index.js";
+export * from "./scene/index.js";
+export * from "./scenario/index.js";
 export * from "./cluster/index.js";

@@ -1,7 +1,7 @@
 import type { Track } from "../recording/types.js";
 import { InputError } from "../core/errors.js";
 import { assignLanes } from "../kinematics/assignLanes.js";
-import { deriveMotion, medianStep } from "../kinematics/deriveMotion.js";
+import { deriveMotion, medianStep, windowSamples } from "../kinematics/deriveMotion.js";
 import { splitAtGaps } from "../kinematics/splitAtGaps.js";
 import { LAT_KEEP, LAT_LEFT, LAT_RIGHT, LATERAL, LON_DECELERATE, LON_KEEP, LONGITUDINAL } from "./labels.js";
 import { labelLongitudinal } from "./labelLongitudinal.js";
@@ -53,6 +53,7 @@ export function detectWithResolved(track: Track, o: ResolvedManeuverOptions): Tr
       warnings.push(`track ${track.id}: samples ${s}..${e - 1} span ${span.toFixed(2)} s < minJudgeS=${o.minJudgeS} s; too short to judge, labelled keep / lane-keep`);
       continue;
     }
+    holdEdges(motion.ax, s, e, windowSamples(o.accelWindowS, dt, o.order));
     debounceLanes(lane, s, e, Math.max(1, Math.round(o.minLaneHoldS * perS)));
     labelLongitudinal(motion.ax, s, e, o.keepAccel, o.keepAccel - o.hysteresis, Math.round(o.minLongitudinalS * perS), longitudinal);
     const changes = findLaneChanges(lane, motion.vy, s, e, o.lateralSpeed, warnings, track.id);
@@ -137,6 +138,20 @@ function refineByProfile(track: Track, lc: FoundLaneChange): void {
   while (end > lc.cross && t[end]! > fit.t1) end--;
   lc.start = Math.min(start, lc.cross);
   lc.end = Math.max(end, lc.cross);
+}
+
+/**
+ * Hold the acceleration over the first and last half window of a run at the value of the first and
+ * last full-window fit. At the ends the Savitzky–Golay polynomial is evaluated off-centre, where the
+ * variance of its second derivative grows (for a cubic fit: 10× a quarter window from the end, 35× at
+ * the very end, from the filter coefficients), and
+ * position noise there would otherwise show as false accelerations.
+ */
+function holdEdges(ax: Float64Array, s: number, e: number, window: number): void {
+  const m = (window - 1) >> 1;
+  if (e - s <= 2 * m + 1) return;
+  ax.fill(ax[s + m]!, s, s + m);
+  ax.fill(ax[e - 1 - m]!, e - m, e);
 }
 
 /** Crossing time interpolated where the smoothed y passes the marking between the two lanes. */

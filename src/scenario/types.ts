@@ -60,6 +60,33 @@ export interface Scenario {
   slotOccupancy: number[];
   events: ScenarioEvent[];
   criticality: ScenarioCriticality;
+  /** Ego motion summary over the window (filled by buildScenarios; the embedding reads it). */
+  stats?: ScenarioStats;
+  /**
+   * True when the window is shorter than the nominal length (fixed mode) or minSeconds (event mode)
+   * because the drive ended or was interrupted by a time gap.
+   */
+  partial?: boolean;
+}
+
+/** Ego motion summary of one scenario window. Speeds in m/s, accelerations in m/s². */
+export interface ScenarioStats {
+  speedStart: number;
+  speedEnd: number;
+  speedMin: number;
+  speedMax: number;
+  /** Standard deviation of the ego speed over the window's samples. */
+  speedSd: number;
+  /** Peak acceleration (positive) and peak lateral speed (absolute). */
+  maxAccel: number;
+  maxLateralSpeed: number;
+  /** Share of the window's samples labelled accelerate, decelerate, and lane change (either side). */
+  shareAccelerate: number;
+  shareDecelerate: number;
+  shareLaneChange: number;
+  /** Lane-change crossings of the ego inside the window, to the left and to the right. */
+  laneChangesLeft: number;
+  laneChangesRight: number;
 }
 
 /** Shape of the fixed scenario tensor. */
@@ -78,5 +105,9 @@ export interface ScenarioSet {
   /** Actor order (ego first, then SLOTS) and channel names, for labelling. */
   actorNames: string[];
   channelNames: string[];
+  /** Unit of each channel, aligned with channelNames. */
+  channelUnits?: string[];
+  /** The options the set was built with (resolved), for provenance. */
+  options?: Record<string, unknown>;
   warnings: string[];
 }

@@ -1,0 +1,183 @@
+/**
+ * Accuracy of maneuver, lane-change and cut-in detection against the generator's ground truth.
+ *
+ *   npm run bench -- maneuvers [--seed N] [--km K] [--noise SD]
+ *
+ * Generates traffic on the fictional Orrowind Motorway with position noise (default 0.1 m), keeps the
+ * noisy positions only (velocity, acceleration and lane columns are re-derived through kinematics/, as
+ * the reader does for a file without them), detects maneuvers and scenes, and compares with the truth:
+ * - lateralFrameAccuracy / longitudinalFrameAccuracy: share of samples with the true label;
+ * - laneChangePrecision / laneChangeRecall: one-to-one matches of lane-change segments with true lane
+ *   changes (same track and direction, crossings within 1 s); true lane changes whose crossing lies
+ *   outside the recorded span cannot be observed and are left out of both;
+ * - boundaryErrorMedianS: median |error| of start and end over matched lane changes lying wholly
+ *   inside their track's span;
+ * - cutInPrecision / cutInRecall: cut-in events matched on (ego, cutter) with times within 1 s.
+ * Also prints the time of each stage. Last line: one JSON object with the figures.
+ */
+import { Rng } from "../src/core/rng.js";
+import { generateTraffic } from "../src/synth/generateTraffic.js";
+import { deriveMotion } from "../src/kinematics/deriveMotion.js";
+import { assignLanes } from "../src/kinematics/assignLanes.js";
+import { detectAllManeuvers } from "../src/maneuvers/detectAllManeuvers.js";
+import { buildScenes } from "../src/scene/buildScenes.js";
+import type { Recording } from "../src/recording/types.js";
+import type { GroundTruth } from "../src/synth/types.js";
+import type { TrackManeuvers } from "../src/maneuvers/types.js";
+import type { EgoScene } from "../src/scene/types.js";
+
+function arg(args: string[], name: string, fallback: number): number {
+  const i = args.indexOf(`--${name}`);
+  if (i < 0) return fallback;
+  const v = Number(args[i + 1]);
+  if (!Number.isFinite(v)) throw new Error(`--${name} ${args[i + 1]} should be a number`);
+  return v;
+}
+
+/** Keep positions only and re-derive the rest, as for a file without velocity columns. */
+export function positionsOnly(rec: Recording): Recording {
+  return {
+    ...rec,
+    tracks: rec.tracks.map((tr) => {
+      const m = deriveMotion(tr);
+      return { ...tr, vx: m.vx, vy: m.vy, ax: m.ax, ay: m.ay, lane: assignLanes(tr.y, rec.road.laneMarkings) };
+    }),
+  };
+}
+
+export interface ManeuverScores {
+  lateralFrameAccuracy: number;
+  laneChangePrecision: number;
+  laneChangeRecall: number;
+  boundaryErrorMedianS: number;
+  longitudinalFrameAccuracy: number;
+  cutInPrecision: number;
+  cutInRecall: number;
+  laneChangesTrue: number;
+  laneChangesDetected: number;
+  cutInsTrue: number;
+  cutInsDetected: number;
+}
+
+function median(v: number[]): number {
+  if (v.length === 0) return NaN;
+  const a = [...v].sort((x, y) => x - y);
+  const h = a.length >> 1;
+  return a.length % 2 ? a[h]! : 0.5 * (a[h - 1]! + a[h]!);
+}
+
+/** Compare detections with the ground truth (definitions as in the file header). */
+export function scoreManeuvers(rec: Recording, truth: GroundTruth, man: TrackManeuvers[], scenes: EgoScene[]): ManeuverScores {
+  let latOk = 0;
+  let lonOk = 0;
+  let frames = 0;
+  const byId = new Map(rec.tracks.map((t, k) => [t.id, k]));
+  for (const tt of truth.tracks) {
+    const k = byId.get(tt.trackId)!;
+    const m = man[k]!;
+    for (let i = 0; i < tt.lateral.length; i++) {
+      if (m.lateral[i] === tt.lateral[i]) latOk++;
+      if (m.longitudinal[i] === tt.longitudinal[i]) lonOk++;
+      frames++;
+    }
+  }
+  // Lane changes.
+  type Det = { track: number; dir: "left" | "right"; tStart: number; tCross: number; tEnd: number; used: boolean };
+  const dets: Det[] = [];
+  for (const m of man)
+    for (const g of m.segments)
+      if (g.axis === "lateral" && g.laneChange)
+        dets.push({ track: m.trackId, dir: g.maneuver === "lane-change-left" ? "left" : "right", tStart: g.tStart, tCross: g.laneChange.tCross, tEnd: g.tEnd, used: false });
+  const observable = truth.laneChanges.filter((lc) => {
+    const tr = rec.tracks[byId.get(lc.trackId)!]!;
+    return lc.tCross > tr.t[0]! && lc.tCross <= tr.t[tr.t.length - 1]!;
+  });
+  const detByTrack = new Map<number, Det[]>();
+  for (const d of dets) (detByTrack.get(d.track) ?? detByTrack.set(d.track, []).get(d.track)!).push(d);
+  let matched = 0;
+  const boundary: number[] = [];
+  for (const lc of observable) {
+    let best: Det | undefined;
+    for (const d of detByTrack.get(lc.trackId) ?? []) {
+      if (d.used || d.dir !== lc.direction || Math.abs(d.tCross - lc.tCross) > 1) continue;
+      if (!best || Math.abs(d.tCross - lc.tCross) < Math.abs(best.tCross - lc.tCross)) best = d;
+    }
+    if (!best) continue;
+    best.used = true;
+    matched++;
+    if (!lc.partial) boundary.push(Math.abs(best.tStart - lc.tStart), Math.abs(best.tEnd - lc.tEnd));
+  }
+  // Detections whose crossing matches an unobservable truth cannot exist (no crossing observed), so precision counts all.
+  // Cut-ins.
+  type Cut = { ego: number; other: number; t: number; used: boolean };
+  const cuts: Cut[] = [];
+  for (const s of scenes) for (const e of s.events) if (e.kind === "cut-in") cuts.push({ ego: s.trackId, other: e.other, t: e.t, used: false });
+  let cutMatched = 0;
+  for (const c of truth.cutIns) {
+    const hit = cuts.find((d) => !d.used && d.ego === c.egoTrack && d.other === c.cutterTrack && Math.abs(d.t - c.t) <= 1);
+    if (hit) {
+      hit.used = true;
+      cutMatched++;
+    }
+  }
+  return {
+    lateralFrameAccuracy: latOk / frames,
+    laneChangePrecision: dets.length ? matched / dets.length : 1,
+    laneChangeRecall: observable.length ? matched / observable.length : 1,
+    boundaryErrorMedianS: median(boundary),
+    longitudinalFrameAccuracy: lonOk / frames,
+    cutInPrecision: cuts.length ? cutMatched / cuts.length : 1,
+    cutInRecall: truth.cutIns.length ? cutMatched / truth.cutIns.length : 1,
+    laneChangesTrue: observable.length,
+    laneChangesDetected: dets.length,
+    cutInsTrue: truth.cutIns.length,
+    cutInsDetected: cuts.length,
+  };
+}
+
+export async function run(args: string[]): Promise<void> {
+  const seed = arg(args, "seed", 7);
+  const km = arg(args, "km", 300);
+  const noise = arg(args, "noise", 0.1);
+  let t0 = performance.now();
+  const gen = generateTraffic(
+    { recordingId: `bench-${seed}`, vehicleKm: km, flowPerLane: 800, positionNoiseSd: noise, writeVelocities: false, hardBrakingRate: 0.04, tightCutInRate: 0.04 },
+    new Rng(seed),
+  );
+  const tGen = performance.now() - t0;
+  const rec = positionsOnly(gen.recording);
+  const d = gen.truth.definitions;
+  t0 = performance.now();
+  const man = detectAllManeuvers(rec, {
+    keepAccel: d.lonEnterThreshold,
+    hysteresis: d.lonEnterThreshold! - d.lonExitThreshold!,
+    minLongitudinalS: d.lonMinDuration,
+  });
+  const tMan = performance.now() - t0;
+  t0 = performance.now();
+  const scenes = buildScenes(rec, man, { cutInMaxGap: d.cutInMaxGap });
+  const tScene = performance.now() - t0;
+  const s = scoreManeuvers(rec, gen.truth, man, scenes);
+  console.log(
+    `seed ${seed}: ${gen.stats.vehicleKm.toFixed(1)} vehicle-km, ${gen.stats.rows} rows, ${gen.stats.vehicles} tracks, noise ${noise} m; ` +
+      `generate ${(tGen / 1000).toFixed(2)} s, maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s`,
+  );
+  console.log(`lane changes: ${s.laneChangesTrue} observable true, ${s.laneChangesDetected} detected; cut-ins: ${s.cutInsTrue} true, ${s.cutInsDetected} detected`);
+  const round = (v: number): number => Math.round(v * 10000) / 10000;
+  console.log(
+    JSON.stringify({
+      seed,
+      vehicleKm: round(gen.stats.vehicleKm),
+      rows: gen.stats.rows,
+      lateralFrameAccuracy: round(s.lateralFrameAccuracy),
+      laneChangePrecision: round(s.laneChangePrecision),
+      laneChangeRecall: round(s.laneChangeRecall),
+      boundaryErrorMedianS: round(s.boundaryErrorMedianS),
+      longitudinalFrameAccuracy: round(s.longitudinalFrameAccuracy),
+      cutInPrecision: round(s.cutInPrecision),
+      cutInRecall: round(s.cutInRecall),
+      maneuversSeconds: round(tMan / 1000),
+      scenesSeconds: round(tScene / 1000),
+    }),
+  );
+}
