@@ -359,6 +359,11 @@ describe("readRecording derived motion, lanes, kinds", () => {
     }
     writeFileSync(join(d, "d.csv"), lines.join("\n"));
     const rec = await readRecording(join(d, "d.csv"), { road: ROAD });
+    // 150 samples ≥ the 51-sample window: no short-stretch warning, only the defaults used.
+    expect(rec.warnings).toEqual([
+      expect.stringContaining("default sizes per kind used for 1 of 1 tracks"),
+      'the file has no kind column: all 1 tracks are kind "other"',
+    ]);
     const tr = rec.tracks[0]!;
     for (let i = 0; i < tr.t.length; i++) {
       expect(tr.vx[i]).toBeCloseTo(20 + 1.5 * tr.t[i]!, 6);
@@ -375,6 +380,10 @@ describe("readRecording derived motion, lanes, kinds", () => {
     expect(Array.from(rec.tracks[0]!.vx)).toEqual([10, 10, 10]);
     expect(rec.tracks[1]!.vx[1]).toBeCloseTo(20, 9);
     expect(rec.warnings).toContain("vx: empty or non-finite values in 1 tracks; vx derived from positions for those tracks");
+    // 3 samples each, far below the 51-sample (2 s at 25 Hz) acceleration window.
+    expect(rec.warnings).toContain(
+      "2 tracks have a stretch shorter than the acceleration smoothing window (2 s); their derived acceleration there comes from a shorter window and is noisier",
+    );
   });
 
   it("assigns lanes from the markings and ignores a lane column unless lanes: 'file' (warning when they differ)", async () => {

@@ -41,7 +41,7 @@ export interface Motion {
   ay: Float64Array;
 }
 
-const DEFAULTS: Required<DeriveMotionOptions> = { windowS: 1.0, accelWindowS: 2.0, order: 3, maxGapFactor: 1.5 };
+export const DERIVE_MOTION_DEFAULTS: Readonly<Required<DeriveMotionOptions>> = { windowS: 1.0, accelWindowS: 2.0, order: 3, maxGapFactor: 1.5 };
 
 /**
  * Smoothed position, velocity and acceleration of one track by Savitzky–Golay filtering (Savitzky &
@@ -84,7 +84,7 @@ export function deriveMotion(track: TrackPositions, options: DeriveMotionOptions
 }
 
 function resolveOptions(options: DeriveMotionOptions): Required<DeriveMotionOptions> {
-  const o = { ...DEFAULTS, ...stripUndefined(options) };
+  const o = { ...DERIVE_MOTION_DEFAULTS, ...stripUndefined(options) };
   if (!(o.windowS > 0) || !Number.isFinite(o.windowS)) throw new InputError(`windowS=${o.windowS} should be a finite number > 0 (seconds)`);
   if (!(o.accelWindowS > 0) || !Number.isFinite(o.accelWindowS))
     throw new InputError(`accelWindowS=${o.accelWindowS} should be a finite number > 0 (seconds)`);

@@ -6,7 +6,8 @@ import { InputError } from "../core/errors.js";
 import type { Progress } from "../core/progress.js";
 import { throttleProgress } from "../core/progress.js";
 import { assignLanes } from "../kinematics/assignLanes.js";
-import { deriveMotion } from "../kinematics/deriveMotion.js";
+import { DERIVE_MOTION_DEFAULTS, deriveMotion, medianStep, windowSamples } from "../kinematics/deriveMotion.js";
+import { splitAtGaps } from "../kinematics/splitAtGaps.js";
 import type { DeriveMotionOptions, Motion } from "../kinematics/deriveMotion.js";
 import type { TrackColumn } from "./columns.js";
 import { DEFAULT_SIZES, KIND_CODES, KIND_EMPTY } from "./kinds.js";
@@ -116,6 +117,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
   const derivedCounts: Record<string, number> = {};
   let sizeDefaulted = 0;
   let laneDisagree = 0;
+  let shortDerived = 0;
   const kindDefaulted = { empty: 0, unrecognised: 0 };
   const progress = o.progress ? throttleProgress(o.progress) : undefined;
 
@@ -225,6 +227,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
         );
         continue;
       }
+      if (motion.ax === derived.ax && hasShortRun(t, o.motion)) shortDerived++;
     }
 
     // Lanes.
@@ -304,6 +307,10 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
       `REJECTED ${rejected.length} of ${trackIds.length} tracks (${rowsLost} rows) that failed validation; first: track ${first.trackId}, row ${first.row}: ${first.reason}. See Recording.rejected`,
     );
   }
+  if (shortDerived > 0)
+    warnings.push(
+      `${shortDerived} tracks have a stretch shorter than the acceleration smoothing window (${o.motion.accelWindowS ?? DERIVE_MOTION_DEFAULTS.accelWindowS} s); their derived acceleration there comes from a shorter window and is noisier`,
+    );
   if (laneDisagree > 0) {
     const kept = tracks.reduce((s, t) => s + t.t.length, 0);
     warnings.push(
@@ -330,6 +337,16 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
         .join(", ")})`,
     );
   return { tracks, rejected, warnings };
+}
+
+/** Whether some contiguous run of t is shorter than the acceleration window deriveMotion would use. */
+function hasShortRun(t: Float64Array, motion: DeriveMotionOptions): boolean {
+  const dt = medianStep(t);
+  if (!(dt > 0)) return true;
+  const d = DERIVE_MOTION_DEFAULTS;
+  const w = windowSamples(motion.accelWindowS ?? d.accelWindowS, dt, motion.order ?? d.order);
+  for (const [a, b] of splitAtGaps(t, (motion.maxGapFactor ?? d.maxGapFactor) * dt)) if (b - a < w) return true;
+  return false;
 }
 
 function firstNonFinite(a: Float64Array): number {
