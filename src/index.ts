@@ -14,4 +14,5 @@ export type * from "./scenario/types.js";
 export * from "./maneuvers/index.js";
 export * from "./scene/index.js";
 export * from "./scenario/index.js";
+export * from "./embed/index.js";
 export * from "./cluster/index.js";
