@@ -16,3 +16,6 @@ export * from "./scene/index.js";
 export * from "./scenario/index.js";
 export * from "./embed/index.js";
 export * from "./cluster/index.js";
+export * from "./exposure/index.js";
+export * from "./coverage/index.js";
+export * from "./plan/index.js";
