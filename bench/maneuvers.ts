@@ -21,6 +21,8 @@ import { deriveMotion } from "../src/kinematics/deriveMotion.js";
 import { assignLanes } from "../src/kinematics/assignLanes.js";
 import { detectAllManeuvers } from "../src/maneuvers/detectAllManeuvers.js";
 import { buildScenes } from "../src/scene/buildScenes.js";
+import { buildScenarios } from "../src/scenario/buildScenarios.js";
+import { embedScenarios } from "../src/embed/features.js";
 import type { Recording } from "../src/recording/types.js";
 import type { GroundTruth } from "../src/synth/types.js";
 import type { TrackManeuvers } from "../src/maneuvers/types.js";
@@ -157,10 +159,17 @@ export async function run(args: string[]): Promise<void> {
   t0 = performance.now();
   const scenes = buildScenes(rec, man, { cutInMaxGap: d.cutInMaxGap });
   const tScene = performance.now() - t0;
+  t0 = performance.now();
+  const set = buildScenarios(rec, man, scenes);
+  const tScen = performance.now() - t0;
+  t0 = performance.now();
+  const emb = embedScenarios(set);
+  const tEmb = performance.now() - t0;
   const s = scoreManeuvers(rec, gen.truth, man, scenes);
   console.log(
     `seed ${seed}: ${gen.stats.vehicleKm.toFixed(1)} vehicle-km, ${gen.stats.rows} rows, ${gen.stats.vehicles} tracks, noise ${noise} m; ` +
-      `generate ${(tGen / 1000).toFixed(2)} s, maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s`,
+      `generate ${(tGen / 1000).toFixed(2)} s, maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s, ` +
+      `scenarios ${(tScen / 1000).toFixed(2)} s (${set.scenarios.length}), embedding ${(tEmb / 1000).toFixed(2)} s (${emb.matrix.rows} × ${emb.matrix.cols})`,
   );
   console.log(`lane changes: ${s.laneChangesTrue} observable true, ${s.laneChangesDetected} detected; cut-ins: ${s.cutInsTrue} true, ${s.cutInsDetected} detected`);
   const round = (v: number): number => Math.round(v * 10000) / 10000;
@@ -178,6 +187,8 @@ export async function run(args: string[]): Promise<void> {
       cutInRecall: round(s.cutInRecall),
       maneuversSeconds: round(tMan / 1000),
       scenesSeconds: round(tScene / 1000),
+      scenariosSeconds: round(tScen / 1000),
+      embedSeconds: round(tEmb / 1000),
     }),
   );
 }
