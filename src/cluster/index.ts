@@ -7,3 +7,7 @@ export { silhouette, calinskiHarabasz, daviesBouldin, SILHOUETTE_SAMPLE_SIZE } f
 export type { SilhouetteOptions, SilhouetteResult } from "./metrics.js";
 export { sweepK, SWEEP_RULE } from "./sweepK.js";
 export type { SweepKOptions, SweepKRow, SweepKResult } from "./sweepK.js";
+export { dbscan } from "./dbscan.js";
+export type { DbscanOptions, DbscanResult } from "./dbscan.js";
+export { suggestEps, kneeOfIncreasing, SUGGEST_EPS_METHOD } from "./suggestEps.js";
+export type { SuggestEpsOptions, SuggestEpsResult } from "./suggestEps.js";
