@@ -301,7 +301,8 @@ function fillTensor(
   const stepOf = new Int32Array(end - a);
   const counts = new Int32Array(S);
   for (let i = a; i < end; i++) {
-    const s = width > 0 ? Math.min(S - 1, Math.floor((tr.t[i]! - t0) / width)) : 0;
+    // The small tolerance puts a sample lying on a step boundary (up to rounding) into the later step.
+    const s = width > 0 ? Math.min(S - 1, Math.floor((tr.t[i]! - t0) / width + 1e-9)) : 0;
     stepOf[i - a] = s;
     counts[s]!++;
   }
