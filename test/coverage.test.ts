@@ -418,11 +418,21 @@ describe("discoveryCurve and catalogueCoverage", () => {
     expect(c.couponCollector.equal.kinds).toBe(8);
     expect(c.couponCollector.equal.expectedScenarios).toBeCloseTo(8 * harmonicNumber(8), 12);
     expect(c.couponCollector.equal.additionalScenarios).toBeCloseTo(12, 12);
-    // Estimated model: 2 unseen kinds share 3/13; finding both takes H_2 / (3/26) = 13 draws.
-    expect(c.couponCollector.estimated.additionalScenarios).toBeCloseTo(13, 12);
+    // Estimated model: 2 unseen kinds share the Chao–Jost mass u = (3/13)(36/38); finding both takes
+    // H_2 · 2 / u = 3 / u = 13 · 38 / 36 draws.
+    expect(c.couponCollector.estimated.additionalScenarios).toBeCloseTo((13 * 38) / 36, 12);
+    expect(c.couponCollector.estimated.kinds).toBe(8);
     expect(c.effort.map((e) => e.share)).toEqual([0.9, 0.95, 0.99]);
     expect(c.effort[0]!.additionalKm).toBeCloseTo(c.effort[0]!.additionalScenarios * c.kmPerScenario, 12);
     expect(() => catalogueCoverage(kinds, km, { targetShares: [1] })).toThrow(/targetShares contains 1/);
+  });
+
+  it("catalogueCoverage stays finite when every kind was seen once", () => {
+    const c = catalogueCoverage(["a", "b", "c"], [1, 1, 1]);
+    expect(c.unseenMass).toBe(1);
+    expect(c.chao1.estimate).toBe(6); // 3 + 3·2/2
+    expect(Number.isFinite(c.couponCollector.estimated.expectedScenarios)).toBe(true);
+    expect(catalogueCoverage(["a"], [2]).chao1.estimate).toBe(1);
   });
 
   it("clusterKinds counts each noise scenario as its own kind or leaves noise out", () => {

@@ -112,9 +112,9 @@ export interface CoverageEstimate {
   /** Further driving to expect to see a share of the estimated kinds (Chao et al. 2009). */
   effort: EffortRow[];
   /**
-   * Coupon-collector views. "equal": all Ŝ kinds equally likely (n·H_n). "estimated": the observed
-   * frequencies scaled by (1 − unseen mass), plus round(f0) unseen kinds sharing the unseen mass
-   * equally (a rough model of the tail; the true rare kinds may be rarer).
+   * Coupon-collector views. "equal": all S_obs + round(f0) kinds equally likely (n·H_n). "estimated":
+   * the observed frequencies scaled by (1 − u), plus round(f0) unseen kinds sharing u equally, with u
+   * the Chao–Jost unseen mass (a rough model of the tail; the true rare kinds may be rarer).
    */
   couponCollector: { equal: CouponFigures; estimated: CouponFigures; note: string };
   discovery: DiscoveryCurve;
@@ -151,7 +151,10 @@ export function catalogueCoverage(
   });
   const q = o.couponQuantile;
   const u = unseenMass(counts, "good-turing");
-  const f0r = c1.f0 > 0 && u > 0 ? Math.max(1, Math.round(c1.f0)) : 0;
+  // The coupon model shares out the Chao–Jost unseen mass: unlike f1/n it stays below 1 when every
+  // kind was seen once, so the observed kinds keep a positive probability.
+  const uModel = unseenMass(counts, "chao-jost");
+  const f0r = c1.f0 > 0 && uModel > 0 ? Math.max(1, Math.round(c1.f0)) : 0;
 
   // Equal probabilities over the estimated number of kinds.
   const sEq = fc.sObs + f0r;
@@ -168,12 +171,13 @@ export function catalogueCoverage(
   };
 
   // Observed frequencies plus an equal share of the unseen mass for each estimated unseen kind.
-  const probs = counts.map((c) => (c / fc.n) * (1 - (f0r > 0 ? u : 0)));
+  const probs = counts.map((c) => (c / fc.n) * (1 - (f0r > 0 ? uModel : 0)));
   const grouped = groupProbabilities(probs, o.couponRelTol);
-  if (f0r > 0) grouped.groups.push({ p: u / f0r, count: f0r });
+  if (f0r > 0) grouped.groups.push({ p: uModel / f0r, count: f0r });
   grouped.types += f0r;
   const est = couponCollector(grouped, { quantiles: [q] });
-  const addEst = f0r > 0 ? (harmonicNumber(f0r) * f0r) / u : 0;
+  // f0r kinds of probability uModel/f0r each: E = H_{f0r} · f0r / uModel.
+  const addEst = f0r > 0 ? (harmonicNumber(f0r) * f0r) / uModel : 0;
   const estimated: CouponFigures = {
     kinds: est.types,
     expectedScenarios: est.expected,

@@ -65,7 +65,7 @@ export function composeSummary(plan: TestPlan): string {
   if (e)
     lines.push(
       e.additionalKm > 0
-        ? `About ${formatQuantity(e.additionalKm)} more kilometres would be needed to see ${formatPercent(e.share)} of the estimated types (Chao et al. 2009); seeing every estimated unseen type would take about ${formatQuantity(types.couponCollector.estimated.additionalKm)} more km if they were as frequent as the Good–Turing mass suggests (rarer ones take longer).`
+        ? `About ${formatQuantity(e.additionalKm)} more kilometres would be needed to see ${formatPercent(e.share)} of the estimated types (Chao et al. 2009); seeing every estimated unseen type would take about ${formatQuantity(types.couponCollector.estimated.additionalKm)} more km if they were as frequent as the estimated unseen mass suggests (rarer ones take longer).`
         : `The recordings already show ${formatPercent(e.share)} of the estimated types.`,
     );
   const perMillion = zf.rateBoundPerKm * 1e6;
