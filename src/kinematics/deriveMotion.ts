@@ -29,6 +29,11 @@ export interface DeriveMotionOptions {
    * are smoothed separately, so no polynomial is fitted across a gap. Default 1.5.
    */
   maxGapFactor?: number;
+  /**
+   * Return smoothed positions (true) or the input positions unchanged (false, saves two filter passes
+   * when only the derivatives are wanted). Default true.
+   */
+  smoothPositions?: boolean;
 }
 
 /** Smoothed positions (m) and their first and second time derivatives (m/s, m/s²), one per sample. */
@@ -41,7 +46,13 @@ export interface Motion {
   ay: Float64Array;
 }
 
-export const DERIVE_MOTION_DEFAULTS: Readonly<Required<DeriveMotionOptions>> = { windowS: 1.0, accelWindowS: 2.0, order: 3, maxGapFactor: 1.5 };
+export const DERIVE_MOTION_DEFAULTS: Readonly<Required<DeriveMotionOptions>> = {
+  windowS: 1.0,
+  accelWindowS: 2.0,
+  order: 3,
+  maxGapFactor: 1.5,
+  smoothPositions: true,
+};
 
 /**
  * Smoothed position, velocity and acceleration of one track by Savitzky–Golay filtering (Savitzky &
@@ -79,7 +90,7 @@ export function deriveMotion(track: TrackPositions, options: DeriveMotionOptions
   const runs = dtMedian > 0 ? splitAtGaps(t, o.maxGapFactor * dtMedian) : splitAtGaps(t, Infinity);
   const window = windowSamples(o.windowS, dtMedian, o.order);
   const accelWindow = windowSamples(o.accelWindowS, dtMedian, o.order);
-  for (const [s, e] of runs) deriveRun(track, s, e, window, accelWindow, o.order, out);
+  for (const [s, e] of runs) deriveRun(track, s, e, window, accelWindow, o.order, o.smoothPositions, out);
   return out;
 }
 
@@ -129,6 +140,7 @@ function deriveRun(
   window: number,
   accelWindow: number,
   order: number,
+  smoothPositions: boolean,
   out: Motion,
 ): void {
   const n = e - s;
@@ -154,8 +166,8 @@ function deriveRun(
     return;
   }
   const [w, p] = fit(n, window, order);
-  out.x.set(savitzkyGolay(x, { window: w, order: p }), s);
-  out.y.set(savitzkyGolay(y, { window: w, order: p }), s);
+  out.x.set(smoothPositions ? savitzkyGolay(x, { window: w, order: p }) : x, s);
+  out.y.set(smoothPositions ? savitzkyGolay(y, { window: w, order: p }) : y, s);
   out.vx.set(savitzkyGolay(x, { window: w, order: p, derivative: 1, dt }), s);
   out.vy.set(savitzkyGolay(y, { window: w, order: p, derivative: 1, dt }), s);
   const [wa, pa] = fit(n, accelWindow, order);

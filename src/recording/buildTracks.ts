@@ -80,6 +80,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
   // Stable grouping by track id (counting sort), tracks in ascending id order.
   const dense = new Map<number, number>();
   const counts: number[] = [];
+  const denseOf = new Int32Array(n); // by file-order position k
   for (let k = 0; k < n; k++) {
     const id = ids[at(k)]!;
     let d = dense.get(id);
@@ -89,20 +90,16 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
       counts.push(0);
     }
     counts[d]!++;
+    denseOf[k] = d;
   }
   const trackIds = [...dense.keys()].sort((a, b) => a - b);
-  const starts = new Int32Array(counts.length + 1);
   const byDense = new Int32Array(counts.length); // dense index → position in trackIds
   trackIds.forEach((id, p) => (byDense[dense.get(id)!] = p));
-  const sizes = trackIds.map((id) => counts[dense.get(id)!]!);
-  for (let p = 0; p < sizes.length; p++) starts[p + 1] = starts[p]! + sizes[p]!;
+  const starts = new Int32Array(trackIds.length + 1);
+  for (let p = 0; p < trackIds.length; p++) starts[p + 1] = starts[p]! + counts[dense.get(trackIds[p]!)!]!;
   const fill = starts.slice(0, -1);
   const members = new Int32Array(n);
-  for (let k = 0; k < n; k++) {
-    const i = at(k);
-    const p = byDense[dense.get(ids[i]!)!]!;
-    members[fill[p]!++] = i;
-  }
+  for (let k = 0; k < n; k++) members[fill[byDense[denseOf[k]!]!]!++] = at(k);
 
   const u = o.units;
   const mirror = o.road.direction === "-x" ? -1 : 1;
@@ -129,21 +126,25 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
     const fail = (reason: string, i: number, column?: TrackColumn, value?: unknown) =>
       problems.push({ trackId: id, reason, row: row[i]!, column: column ? names[column] : undefined, value, rows: m });
 
-    // Required values present and finite.
-    let bad = false;
-    for (let k = 0; k < m && !bad; k++) {
-      const i = idx[k]!;
-      for (const c of [timeCol, "x", "y"] as const) {
-        const v = col[c]![i]!;
-        if (!Number.isFinite(v)) {
-          const isEmpty = empty[c]?.[i] === 1;
-          fail(isEmpty ? `${c} is empty` : `${c} is not a finite number`, i, c, isEmpty ? "" : v);
-          bad = true;
+    // Required values present and finite (first offending row in file order).
+    let badK = m;
+    let badC: TrackColumn = timeCol;
+    for (const c of [timeCol, "x", "y"] as const) {
+      const a = col[c]!;
+      for (let k = 0; k < badK; k++)
+        if (!Number.isFinite(a[idx[k]!]!)) {
+          badK = k;
+          badC = c;
           break;
         }
-      }
     }
-    if (bad) continue;
+    if (badK < m) {
+      const i = idx[badK]!;
+      const isEmpty = empty[badC]?.[i] === 1;
+      fail(isEmpty ? `${badC} is empty` : `${badC} is not a finite number`, i, badC, isEmpty ? "" : col[badC]![i]);
+      continue;
+    }
+    let bad = false;
 
     // Time order: strictly increasing in file order, or (sortWithinTracks) sorted here and unique.
     if (o.sortWithinTracks) {
@@ -209,7 +210,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
         }
         derivedCounts[c] = (derivedCounts[c] ?? 0) + 1;
       }
-      derived ??= deriveMotion({ t, x, y }, o.motion);
+      derived ??= deriveMotion({ t, x, y }, { ...o.motion, smoothPositions: false });
       motion[c] = derived[c];
     }
     if (derived) {
@@ -356,13 +357,19 @@ function firstNonFinite(a: Float64Array): number {
 
 function medianPositive(src: Float64Array | undefined, idx: Int32Array): number {
   if (!src) return NaN;
-  const vals: number[] = [];
+  // Usually one value repeated on every row: skip the sort then.
+  const first = src[idx[0]!]!;
+  let same = first > 0 && Number.isFinite(first);
+  for (let k = 1; k < idx.length && same; k++) same = src[idx[k]!] === first;
+  if (same) return first;
+  const buf = new Float64Array(idx.length);
+  let c = 0;
   for (let k = 0; k < idx.length; k++) {
     const v = src[idx[k]!]!;
-    if (v > 0 && Number.isFinite(v)) vals.push(v);
+    if (v > 0 && Number.isFinite(v)) buf[c++] = v;
   }
-  if (vals.length === 0) return NaN;
-  vals.sort((a, b) => a - b);
-  const h = vals.length >> 1;
-  return vals.length % 2 === 1 ? vals[h]! : 0.5 * (vals[h - 1]! + vals[h]!);
+  if (c === 0) return NaN;
+  const vals = buf.subarray(0, c).sort();
+  const h = c >> 1;
+  return c % 2 === 1 ? vals[h]! : 0.5 * (vals[h - 1]! + vals[h]!);
 }
