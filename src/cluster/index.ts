@@ -11,3 +11,5 @@ export { dbscan } from "./dbscan.js";
 export type { DbscanOptions, DbscanResult } from "./dbscan.js";
 export { suggestEps, kneeOfIncreasing, SUGGEST_EPS_METHOD } from "./suggestEps.js";
 export type { SuggestEpsOptions, SuggestEpsResult } from "./suggestEps.js";
+export { medoids } from "./medoids.js";
+export type { MedoidsOptions, MedoidsResult } from "./medoids.js";

@@ -1,0 +1,280 @@
+import type { Matrix } from "../core/matrix.js";
+import type { Progress } from "../core/progress.js";
+import { checkLabels, checkMatrix } from "./_validate.js";
+import { symmetricEigen } from "../embed/_symEigen.js";
+
+export interface MedoidsOptions {
+  progress?: Progress;
+}
+
+export interface MedoidsResult {
+  /** Per cluster 0..k-1: the row (a real scenario) with the smallest sum of Euclidean distances to its cluster; -1 if empty. */
+  indices: Int32Array;
+  /** That smallest sum of distances, per cluster (NaN if empty). */
+  distanceSums: Float64Array;
+  /** Cluster sizes. */
+  sizes: Int32Array;
+  /** Rows whose full distance sum was evaluated, per cluster (the rest were ruled out by bounds). */
+  evaluated: Int32Array;
+  warnings: string[];
+}
+
+/** Relative margin on every bound so that rounding can only cost an extra exact evaluation. */
+const MARGIN = 1e-9;
+
+/**
+ * Exact medoid of every cluster (noise rows, label -1, are left out): the member minimising the sum
+ * of Euclidean distances to all members; ties go to the lowest row index.
+ *
+ * A full sum costs O(m·d), so evaluating all m members is O(m²·d). Instead every member gets a
+ * proven lower bound on its sum, members are evaluated in increasing order of that bound, and the
+ * search stops as soon as the next bound exceeds the best sum found — the answer is exact.
+ *
+ * Bounds for a member x with v = x - mean, over members y_j with u_j = y_j - mean:
+ *  - moment bound: with a_j = |x - y_j|², A = mean a_j = |v|² + mean|u|², V = var a_j
+ *    = var|u|² - 4 v·E[|u|² u] + 4 vᵀ Cov v (all from per-cluster moments, O(d²) per member), the
+ *    inequality √a >= √A + (a - A)/(2√A) - (a - A)²/(2 A^{3/2}) (for a >= 0; equal to
+ *    (s-1)² s(s+2)/2 >= 0 with s = √(a/A)) summed over j gives S(x) >= m(√A - V/(2 A^{3/2}));
+ *  - centroid bound: S(x) >= |Σ_j (x - y_j)| = m |v| (triangle inequality);
+ *  - trimed bound (Newling & Fleuret, "A sub-quadratic exact medoid algorithm", AISTATS 2017): after
+ *    evaluating S(i) with all distances d(i, j), S(j) >= |S(i) - m·d(i, j)|.
+ * The moment bound is what prunes in high dimension where distances concentrate; the trimed bound is
+ * what prunes in low dimension.
+ */
+export function medoids(X: Matrix, labels: Int32Array, options: MedoidsOptions = {}): MedoidsResult {
+  checkMatrix(X, "X");
+  const k = checkLabels(labels, X.rows);
+  const n = X.rows;
+  const d = X.cols;
+  const sizes = new Int32Array(k);
+  for (let i = 0; i < n; i++) if (labels[i]! >= 0) sizes[labels[i]!]!++;
+  // Members of each cluster, in increasing row order (CSR).
+  const offs = new Int32Array(k + 1);
+  for (let j = 0; j < k; j++) offs[j + 1] = offs[j]! + sizes[j]!;
+  const members = new Int32Array(offs[k]!);
+  const fill = offs.slice(0, k);
+  for (let i = 0; i < n; i++) if (labels[i]! >= 0) members[fill[labels[i]!]!++] = i;
+
+  const indices = new Int32Array(k).fill(-1);
+  const distanceSums = new Float64Array(k).fill(NaN);
+  const evaluated = new Int32Array(k);
+  const warnings: string[] = [];
+  let done = 0;
+  for (let c = 0; c < k; c++) {
+    options.progress?.({ stage: "medoids", done, total: offs[k]!, message: `cluster ${c}` });
+    const rows = members.subarray(offs[c]!, offs[c + 1]!);
+    done += rows.length;
+    if (rows.length === 0) {
+      warnings.push(`cluster ${c} has no rows: no medoid`);
+      continue;
+    }
+    const r = exactMedoid(X.data, d, rows);
+    indices[c] = r.index;
+    distanceSums[c] = r.sum;
+    evaluated[c] = r.evaluated;
+  }
+  options.progress?.({ stage: "medoids", done: offs[k]!, total: offs[k]! });
+  return { indices, distanceSums, sizes, evaluated, warnings };
+}
+
+/** Sum of distances from row `xi` to every row in `rows`, also writing each distance into `out`. */
+function distanceSum(X: Float64Array, d: number, xi: number, rows: Int32Array, out: Float64Array | null): number {
+  const xo = xi * d;
+  let sum = 0;
+  for (let j = 0; j < rows.length; j++) {
+    const yo = rows[j]! * d;
+    let s0 = 0;
+    let s1 = 0;
+    let t = 0;
+    for (; t + 1 < d; t += 2) {
+      const a = X[xo + t]! - X[yo + t]!;
+      const b = X[xo + t + 1]! - X[yo + t + 1]!;
+      s0 += a * a;
+      s1 += b * b;
+    }
+    if (t < d) {
+      const a = X[xo + t]! - X[yo + t]!;
+      s0 += a * a;
+    }
+    const dist = Math.sqrt(s0 + s1);
+    if (out) out[j] = dist;
+    sum += dist;
+  }
+  return sum;
+}
+
+export function exactMedoid(X: Float64Array, d: number, rows: Int32Array): { index: number; sum: number; evaluated: number } {
+  const m = rows.length;
+  if (m <= 2) {
+    // One row, or two rows with equal sums: the lowest index.
+    return { index: rows[0]!, sum: m === 1 ? 0 : distanceSum(X, d, rows[0]!, rows, null), evaluated: m };
+  }
+  const mb = new MomentBounds(X, d, rows);
+  const order = Int32Array.from({ length: m }, (_, i) => i).sort((a, b) => mb.cheap[a]! - mb.cheap[b]! || a - b);
+  const tri = new Float64Array(m); // trimed bounds, 0 = none yet
+  const dist = new Float64Array(m);
+  let best = Infinity;
+  let bestIdx = -1;
+  let evaluated = 0;
+  for (let o = 0; o < m; o++) {
+    const p = order[o]!;
+    if (mb.cheap[p]! * (1 - MARGIN) > best) break; // sorted: no later member can win
+    if (tri[p]! * (1 - MARGIN) > best) continue;
+    if (mb.tight(p) * (1 - MARGIN) > best) continue;
+    const s = distanceSum(X, d, rows[p]!, rows, dist);
+    evaluated++;
+    tri[p] = s;
+    if (s < best || (s === best && rows[p]! < bestIdx)) {
+      best = s;
+      bestIdx = rows[p]!;
+    }
+    for (let j = 0; j < m; j++) {
+      const b = Math.abs(s - m * dist[j]!);
+      if (b > tri[j]!) tri[j] = b;
+    }
+  }
+  return { index: bestIdx, sum: best, evaluated };
+}
+
+/**
+ * Lower bounds on every member's distance sum from the cluster's moments (see medoids). `cheap`
+ * replaces vᵀ Cov v by an upper bound from Cov's top 8 eigenpairs (the rest bounded by the 9th
+ * eigenvalue), O(8·d) per member; `tight(j)` uses vᵀ Cov v itself, O(d²), and is only
+ * computed for members the cheap bound did not rule out.
+ */
+class MomentBounds {
+  readonly cheap: Float64Array;
+  private readonly X: Float64Array;
+  private readonly d: number;
+  private readonly rows: Int32Array;
+  private readonly mean: Float64Array;
+  private readonly cov: Float64Array;
+  private readonly c3: Float64Array;
+  private readonly T: number;
+  private readonly varR2: number;
+  private readonly v: Float64Array;
+
+  constructor(X: Float64Array, d: number, rows: Int32Array) {
+    this.X = X;
+    this.d = d;
+    this.rows = rows;
+    const m = rows.length;
+    const mean = new Float64Array(d);
+    for (let j = 0; j < m; j++) {
+      const o = rows[j]! * d;
+      for (let t = 0; t < d; t++) mean[t]! += X[o + t]!;
+    }
+    for (let t = 0; t < d; t++) mean[t]! /= m;
+    // Centred rows in blocks of 4, so the covariance accumulates 4 rank-1 updates per pass over it.
+    const U = new Float64Array(4 * d);
+    const cov = new Float64Array(d * d);
+    const c3 = new Float64Array(d);
+    const r2 = new Float64Array(m);
+    let T = 0;
+    for (let j0 = 0; j0 < m; j0 += 4) {
+      const nb = Math.min(4, m - j0);
+      U.fill(0);
+      for (let q = 0; q < nb; q++) {
+        const o = rows[j0 + q]! * d;
+        let s = 0;
+        for (let t = 0; t < d; t++) {
+          const v = X[o + t]! - mean[t]!;
+          U[q * d + t] = v;
+          s += v * v;
+        }
+        r2[j0 + q] = s;
+        T += s;
+        for (let t = 0; t < d; t++) c3[t]! += s * U[q * d + t]!;
+      }
+      for (let a = 0; a < d; a++) {
+        const u0 = U[a]!;
+        const u1 = U[d + a]!;
+        const u2 = U[2 * d + a]!;
+        const u3 = U[3 * d + a]!;
+        const row = a * d;
+        for (let b = a; b < d; b++) cov[row + b]! += u0 * U[b]! + u1 * U[d + b]! + u2 * U[2 * d + b]! + u3 * U[3 * d + b]!;
+      }
+    }
+    T /= m;
+    let varR2 = 0;
+    for (let j = 0; j < m; j++) varR2 += (r2[j]! - T) ** 2;
+    varR2 /= m;
+    for (let a = 0; a < d; a++) {
+      c3[a]! /= m;
+      for (let b = a; b < d; b++) cov[a * d + b]! /= m;
+    }
+    // Top eigenpairs of Cov: vᵀ Cov v <= Σ_{k<r} λ_k (e_k·v)² + λ_r (|v|² - Σ_{k<r} (e_k·v)²).
+    const full = new Float64Array(d * d);
+    for (let a = 0; a < d; a++)
+      for (let b = a; b < d; b++) {
+        full[a * d + b] = cov[a * d + b]!;
+        full[b * d + a] = cov[a * d + b]!;
+      }
+    const eig = symmetricEigen(full, d);
+    const r = Math.min(d, 8);
+    const lam = eig.values;
+    const lamRest = r < d ? Math.max(0, lam[r]!) : 0;
+    // Off-diagonal entries doubled so vᵀ Cov v is a sum over the upper triangle in tight().
+    for (let a = 0; a < d; a++) for (let b = a + 1; b < d; b++) cov[a * d + b]! *= 2;
+    this.mean = mean;
+    this.cov = cov;
+    this.c3 = c3;
+    this.T = T;
+    this.varR2 = varR2;
+    this.v = new Float64Array(d);
+    const cheap = new Float64Array(m);
+    for (let j = 0; j < m; j++) {
+      const o = rows[j]! * d;
+      let vv = 0;
+      let vc3 = 0;
+      const v = this.v;
+      for (let t = 0; t < d; t++) {
+        const x = X[o + t]! - mean[t]!;
+        v[t] = x;
+        vv += x * x;
+        vc3 += x * c3[t]!;
+      }
+      let top = 0;
+      let proj2 = 0;
+      for (let k = 0; k < r; k++) {
+        const eo = k * d;
+        let p = 0;
+        for (let t = 0; t < d; t++) p += eig.vectors[eo + t]! * v[t]!;
+        proj2 += p * p;
+        top += Math.max(0, lam[k]!) * p * p;
+      }
+      const q = top + lamRest * Math.max(0, vv - proj2);
+      cheap[j] = this.bound(m, vv, vc3, q * (1 + 1e-12));
+    }
+    this.cheap = cheap;
+  }
+
+  private bound(m: number, vv: number, vc3: number, q: number): number {
+    const A = vv + this.T;
+    const V = Math.max(0, this.varR2 - 4 * vc3 + 4 * q);
+    const moment = A > 0 ? m * (Math.sqrt(A) - V / (2 * A * Math.sqrt(A))) : 0;
+    const centroid = m * Math.sqrt(vv);
+    return Math.max(0, moment, centroid);
+  }
+
+  tight(j: number): number {
+    const { X, d, mean, c3, cov, v } = this;
+    const o = this.rows[j]! * d;
+    let vv = 0;
+    let vc3 = 0;
+    for (let t = 0; t < d; t++) {
+      const x = X[o + t]! - mean[t]!;
+      v[t] = x;
+      vv += x * x;
+      vc3 += x * c3[t]!;
+    }
+    let q = 0;
+    for (let a = 0; a < d; a++) {
+      const row = a * d;
+      let s = 0;
+      for (let b = a; b < d; b++) s += cov[row + b]! * v[b]!;
+      q += v[a]! * s;
+    }
+    return this.bound(this.rows.length, vv, vc3, q);
+  }
+}
