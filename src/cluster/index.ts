@@ -13,3 +13,7 @@ export { suggestEps, kneeOfIncreasing, SUGGEST_EPS_METHOD } from "./suggestEps.j
 export type { SuggestEpsOptions, SuggestEpsResult } from "./suggestEps.js";
 export { medoids } from "./medoids.js";
 export type { MedoidsOptions, MedoidsResult } from "./medoids.js";
+export { kmeansModel, dbscanModel, modelToJSON, modelFromJSON, NOVELTY_QUANTILE } from "./model.js";
+export type { ClusterModel, KMeansModel, DbscanModel } from "./model.js";
+export { assign } from "./assign.js";
+export type { AssignResult } from "./assign.js";
