@@ -76,6 +76,14 @@ describe("writeGeneratedTraffic determinism", () => {
     expect(meta.files.tracks.sha256).toBe(sha256Text(await readFile(join(dir, "tracks.csv"))));
   });
 
+  it("the fast CSV formatter prints exactly what String(value) gives for every cell (slow reference)", async () => {
+    let ref = "track_id,t,x,y,vx,vy,ax,ay,lane,length,width,kind\n";
+    for (const tr of a.recording.tracks)
+      for (let k = 0; k < tr.t.length; k++)
+        ref += `${tr.id},${tr.t[k]},${tr.x[k]},${tr.y[k]},${tr.vx[k]},${tr.vy[k]},${tr.ax[k]},${tr.ay[k]},${tr.lane[k]},${tr.length},${tr.width},${tr.kind}\n`;
+    expect(await readFile(join(root, "csv-a", "tracks.csv"), "utf8")).toBe(ref);
+  });
+
   it("writeVelocities=false leaves out vx, vy, ax, ay", async () => {
     const dir = join(root, "novel");
     await writeGeneratedTraffic(dir, a, { format: "csv", writeVelocities: false });

@@ -28,29 +28,108 @@ function tmpName(dir: string, name: string): string {
   return join(dir, `.${name}.${process.pid}.${Date.now().toString(36)}.tmp`);
 }
 
+/**
+ * ASCII output buffer with a fast decimal formatter for values on the 1e-3 grid. It prints the same
+ * text as String(v) for such values (shortest form, no trailing zeros), without building strings.
+ */
+class CsvBytes {
+  private buf = Buffer.allocUnsafe(1 << 22);
+  pos = 0;
+  private readonly digits = new Uint8Array(24);
+
+  get full(): boolean {
+    return this.pos > this.buf.length - 512;
+  }
+  take(): Buffer {
+    const out = Buffer.from(this.buf.subarray(0, this.pos));
+    this.pos = 0;
+    return out;
+  }
+  ascii(s: string): void {
+    this.pos += this.buf.write(s, this.pos, "latin1");
+  }
+  byte(c: number): void {
+    this.buf[this.pos++] = c;
+  }
+  /** Non-negative integer. */
+  uint(n: number): void {
+    if (n === 0) {
+      this.buf[this.pos++] = 48;
+      return;
+    }
+    let k = 0;
+    while (n > 0) {
+      const q = Math.floor(n / 10);
+      this.digits[k++] = 48 + (n - q * 10);
+      n = q;
+    }
+    while (k > 0) this.buf[this.pos++] = this.digits[--k]!;
+  }
+  /** A value rounded to 1e-3. */
+  milli(v: number): void {
+    let m = Math.round(v * 1000);
+    if (m === 0) {
+      this.buf[this.pos++] = 48;
+      return;
+    }
+    if (m < 0) {
+      this.buf[this.pos++] = 45;
+      m = -m;
+    }
+    const whole = Math.floor(m / 1000);
+    let frac = m - whole * 1000;
+    this.uint(whole);
+    if (frac === 0) return;
+    this.buf[this.pos++] = 46;
+    let width = 3;
+    while (frac % 10 === 0) {
+      frac /= 10;
+      width--;
+    }
+    const s = frac.toString();
+    for (let i = s.length; i < width; i++) this.buf[this.pos++] = 48;
+    this.ascii(s);
+  }
+}
+
 /** Stream the tracks table as CSV to `path` (one row per track per frame, sorted by track then time). */
 async function writeTracksCsv(path: string, traffic: GeneratedTraffic, velocities: boolean): Promise<number> {
   const fh = await open(path, "w");
   let rows = 0;
   try {
-    let buf = trackColumns(velocities).join(",") + "\n";
+    const out = new CsvBytes();
+    out.ascii(trackColumns(velocities).join(",") + "\n");
     for (const tr of traffic.recording.tracks) {
       const tail = `,${tr.length},${tr.width},${tr.kind}\n`;
-      const id = String(tr.id);
       const n = tr.t.length;
       for (let k = 0; k < n; k++) {
-        // Values are already rounded to 1e-3; String() gives their shortest exact decimal form.
-        buf += velocities
-          ? `${id},${tr.t[k]},${tr.x[k]},${tr.y[k]},${tr.vx[k]},${tr.vy[k]},${tr.ax[k]},${tr.ay[k]},${tr.lane[k]}${tail}`
-          : `${id},${tr.t[k]},${tr.x[k]},${tr.y[k]},${tr.lane[k]}${tail}`;
-        if (buf.length > 1 << 20) {
-          await fh.write(buf);
-          buf = "";
+        out.uint(tr.id);
+        out.byte(44);
+        out.milli(tr.t[k]!);
+        out.byte(44);
+        out.milli(tr.x[k]!);
+        out.byte(44);
+        out.milli(tr.y[k]!);
+        out.byte(44);
+        if (velocities) {
+          out.milli(tr.vx[k]!);
+          out.byte(44);
+          out.milli(tr.vy[k]!);
+          out.byte(44);
+          out.milli(tr.ax[k]!);
+          out.byte(44);
+          out.milli(tr.ay[k]!);
+          out.byte(44);
         }
+        const lane = tr.lane[k]!;
+        if (lane < 0) out.byte(45);
+        out.uint(Math.abs(lane));
+        out.ascii(tail);
+        if (out.full) await fh.write(out.take());
       }
       rows += n;
     }
-    await fh.write(buf);
+    await fh.write(out.take());
   } finally {
     await fh.close();
   }
