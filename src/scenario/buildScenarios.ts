@@ -95,7 +95,7 @@ export function buildScenarios(
         const isLast = w === windows.length - 1;
         const tensor = new Float32Array(per);
         const sc = summarize(recording, maneuvers, scenes[k]!, k, a, b, isLast, ordinal++, scenarios.length, o);
-        fillTensor(recording, maneuvers, scenes[k]!, k, a, b, isLast, o, laneWidth, markings, tensor);
+        fillTensor(recording, maneuvers, scenes[k]!, k, a, b, isLast, o, laneWidth, markings, o.maxGapFactor * dt, tensor);
         scenarios.push(sc);
         chunks.push(tensor);
       }
@@ -288,6 +288,7 @@ function fillTensor(
   o: ResolvedScenarioOptions,
   laneWidth: number,
   markings: number[],
+  maxStep: number,
   out: Float32Array,
 ): void {
   const tr = recording.tracks[k]!;
@@ -358,10 +359,11 @@ function fillTensor(
       }
     }
   };
+  // "changed" compares each sample with the one before it (also across step and window boundaries
+  // within a drive), so a change is counted in the step of the first sample after it.
   for (let i = a; i < end; i++) {
-    const s = stepOf[i - a]!;
-    // The previous sample counts for "changed" only within the same step.
-    add(s, i, i > a && stepOf[i - 1 - a] === s ? i - 1 : -1);
+    const prev = i > 0 && tr.t[i]! - tr.t[i - 1]! <= maxStep ? i - 1 : -1;
+    add(stepOf[i - a]!, i, prev);
   }
   for (let s = 0; s < S; s++) {
     if (counts[s]! > 0) continue;
