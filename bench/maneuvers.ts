@@ -2,6 +2,7 @@
  * Accuracy of maneuver, lane-change and cut-in detection against the generator's ground truth.
  *
  *   npm run bench -- maneuvers [--seed N] [--km K] [--noise SD]
+ *   npm run bench -- maneuvers --sample      (the bundled sample-data/orrowind, read from Parquet)
  *
  * Generates traffic on the fictional Orrowind Motorway with position noise (default 0.1 m), keeps the
  * noisy positions only (velocity, acceleration and lane columns are re-derived through kinematics/, as
@@ -15,7 +16,11 @@
  * - cutInPrecision / cutInRecall: cut-in events matched on (ego, cutter) with times within 1 s.
  * Also prints the time of each stage. Last line: one JSON object with the figures.
  */
+import { dirname, join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { Rng } from "../src/core/rng.js";
+import { readRecording } from "../src/recording/readRecording.js";
+import { readGroundTruth } from "../src/synth/truthFile.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 import { deriveMotion } from "../src/kinematics/deriveMotion.js";
 import { assignLanes } from "../src/kinematics/assignLanes.js";
@@ -142,13 +147,27 @@ export async function run(args: string[]): Promise<void> {
   const km = arg(args, "km", 300);
   const noise = arg(args, "noise", 0.1);
   let t0 = performance.now();
-  const gen = generateTraffic(
-    { recordingId: `bench-${seed}`, vehicleKm: km, flowPerLane: 800, positionNoiseSd: noise, writeVelocities: false, hardBrakingRate: 0.04, tightCutInRate: 0.04 },
-    new Rng(seed),
-  );
-  const tGen = performance.now() - t0;
-  const rec = positionsOnly(gen.recording);
-  const d = gen.truth.definitions;
+  let label: string;
+  let rec: Recording;
+  let truth: GroundTruth;
+  if (args.includes("--sample")) {
+    // The bundled sample has positions only (no velocity columns): the reader derives the rest.
+    const dir = join(dirname(fileURLToPath(import.meta.url)), "..", "sample-data", "orrowind");
+    rec = await readRecording(join(dir, "tracks.parquet"));
+    truth = await readGroundTruth(join(dir, "truth.json"));
+    label = `sample-data/orrowind: read in ${((performance.now() - t0) / 1000).toFixed(2)} s`;
+  } else {
+    const gen = generateTraffic(
+      { recordingId: `bench-${seed}`, vehicleKm: km, flowPerLane: 800, positionNoiseSd: noise, writeVelocities: false, hardBrakingRate: 0.04, tightCutInRate: 0.04 },
+      new Rng(seed),
+    );
+    label = `seed ${seed}: generated in ${((performance.now() - t0) / 1000).toFixed(2)} s, noise ${noise} m`;
+    rec = positionsOnly(gen.recording);
+    truth = gen.truth;
+  }
+  const rows = rec.tracks.reduce((s, tr) => s + tr.t.length, 0);
+  const vehicleKm = rec.tracks.reduce((s, tr) => s + (tr.t.length > 1 ? tr.x[tr.x.length - 1]! - tr.x[0]! : 0), 0) / 1000;
+  const d = truth.definitions;
   t0 = performance.now();
   const man = detectAllManeuvers(rec, {
     keepAccel: d.lonEnterThreshold,
@@ -165,19 +184,19 @@ export async function run(args: string[]): Promise<void> {
   t0 = performance.now();
   const emb = embedScenarios(set);
   const tEmb = performance.now() - t0;
-  const s = scoreManeuvers(rec, gen.truth, man, scenes);
+  const s = scoreManeuvers(rec, truth, man, scenes);
   console.log(
-    `seed ${seed}: ${gen.stats.vehicleKm.toFixed(1)} vehicle-km, ${gen.stats.rows} rows, ${gen.stats.vehicles} tracks, noise ${noise} m; ` +
-      `generate ${(tGen / 1000).toFixed(2)} s, maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s, ` +
+    `${label}; ${vehicleKm.toFixed(1)} vehicle-km, ${rows} rows, ${rec.tracks.length} tracks; ` +
+      `maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s, ` +
       `scenarios ${(tScen / 1000).toFixed(2)} s (${set.scenarios.length}), embedding ${(tEmb / 1000).toFixed(2)} s (${emb.matrix.rows} × ${emb.matrix.cols})`,
   );
   console.log(`lane changes: ${s.laneChangesTrue} observable true, ${s.laneChangesDetected} detected; cut-ins: ${s.cutInsTrue} true, ${s.cutInsDetected} detected`);
   const round = (v: number): number => Math.round(v * 10000) / 10000;
   console.log(
     JSON.stringify({
-      seed,
-      vehicleKm: round(gen.stats.vehicleKm),
-      rows: gen.stats.rows,
+      seed: args.includes("--sample") ? "sample" : seed,
+      vehicleKm: round(vehicleKm),
+      rows,
       lateralFrameAccuracy: round(s.lateralFrameAccuracy),
       laneChangePrecision: round(s.laneChangePrecision),
       laneChangeRecall: round(s.laneChangeRecall),
