@@ -347,16 +347,22 @@ describe("zero-failure demonstration (Kalra & Paddock 2016)", () => {
 });
 
 describe("scenarioTypeKey", () => {
-  it("builds the documented readable signature", () => {
+  it("builds the documented readable signature (coarse defaults and the fine options)", () => {
     const s = makeScenario(0, {
       lateral: ["lane-keep", "lane-change-left"],
       longitudinal: ["keep", "accelerate"],
       slotOccupancy: [0.9, 0.5, 0, 0, 0.51, 0, 0, 0],
       events: [{ kind: "cut-in", t: 3, other: 7 }],
     });
-    expect(scenarioTypeKey(s)).toBe("LK>LCL|K>A|occ:ahead,left-behind|ev:cut-in");
-    expect(scenarioTypeKey(s, { includeLongitudinal: false })).toBe("LK>LCL|occ:ahead,left-behind|ev:cut-in");
-    expect(scenarioTypeKey(s, { occupiedAbove: 0.95 })).toBe("LK>LCL|K>A|occ:-|ev:cut-in");
+    expect(scenarioTypeKey(s)).toBe("LCL|A|occ:ahead,left|ev:cut-in");
+    const fine = { lateral: "sequence", longitudinal: "sequence", occupancy: "slots" } as const;
+    expect(scenarioTypeKey(s, fine)).toBe("LK>LCL|K>A|occ:ahead,left-behind|ev:cut-in");
+    expect(scenarioTypeKey(s, { longitudinal: "none" })).toBe("LCL|occ:ahead,left|ev:cut-in");
+    expect(scenarioTypeKey(s, { occupiedAbove: 0.95 })).toBe("LCL|A|occ:-|ev:cut-in");
+    // Lane keeping only; both accelerating and decelerating; the right lane beside.
+    const k = makeScenario(1, { lateral: ["lane-keep"], longitudinal: ["decelerate", "keep", "accelerate"], slotOccupancy: [0, 0, 0, 0, 0, 0.8, 0, 0] });
+    expect(scenarioTypeKey(k)).toBe("LK|A+D|occ:right|ev:-");
+    expect(parseTypeKey(scenarioTypeKey(k)).longitudinal).toEqual(["A", "D"]);
   });
 
   it("orders events by SCENE_EVENTS, appends sorted flags once, and cuts long sequences with '+'", () => {
@@ -371,9 +377,9 @@ describe("scenarioTypeKey", () => {
       ],
       criticality: { minTtc: 1, minThw: 0.4, maxDrac: 3, maxDecel: 7, flags: ["thw", "harsh-braking", "thw"] },
     });
-    const key = scenarioTypeKey(s);
+    const key = scenarioTypeKey(s, { lateral: "sequence", longitudinal: "sequence" });
     expect(key).toBe("-|K>D>K+|occ:-|ev:cut-in,closing-in,harsh-braking,thw");
-    expect(scenarioTypeKey(s, { includeFlags: false })).toBe("-|K>D>K+|occ:-|ev:cut-in,closing-in");
+    expect(scenarioTypeKey(s, { includeFlags: false })).toBe("LK|A+D|occ:-|ev:cut-in,closing-in");
     expect(parseTypeKey(key)).toEqual({
       lateral: [],
       lateralCut: false,
@@ -382,12 +388,15 @@ describe("scenarioTypeKey", () => {
       occupied: [],
       events: ["cut-in", "closing-in", "harsh-braking", "thw"],
     });
+    const lc = makeScenario(2, { lateral: ["lane-change-left", "lane-keep", "lane-change-right", "lane-keep", "lane-change-left", "lane-keep", "lane-change-right"] });
+    expect(scenarioTypeKey(lc).split("|")[0]).toBe("LCL>LCR>LCL+");
   });
 
   it("rejects a wrong slot count and bad options", () => {
     expect(() => scenarioTypeKey(makeScenario(0, { slotOccupancy: [1, 0] }))).toThrow(/2 slot occupancy values; expected 8/);
     expect(() => scenarioTypeKeys([makeScenario(0)], { occupiedAbove: 1 })).toThrow(/occupiedAbove=1/);
     expect(() => scenarioTypeKeys([makeScenario(0)], { maxManeuvers: 0 })).toThrow(/maxManeuvers=0/);
+    expect(() => scenarioTypeKeys([makeScenario(0)], { occupancy: "lanes" as never })).toThrow(/occupancy="lanes"/);
   });
 });
 

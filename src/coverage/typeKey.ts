@@ -7,40 +7,55 @@ import type { Scenario } from "../scenario/types.js";
  * A scenario's type key: a short, readable, deterministic signature of what happens in the window,
  * used beside the clusters to count kinds of situation. Four parts joined by "|":
  *
- *   <lateral>|<longitudinal>|occ:<slots>|ev:<events>      e.g. "LK>LCL|K>A|occ:ahead,left-behind|ev:cut-in"
+ *   <lateral>|<longitudinal>|occ:<occupancy>|ev:<events>       e.g. "LCL|A|occ:ahead,left|ev:cut-in"
  *
- * - lateral: the ego's lateral maneuvers in order (LK lane keep, LCL lane change left, LCR lane
- *   change right), consecutive repeats already collapsed by extraction, joined by ">"; "-" if none.
- * - longitudinal: likewise with K keep, A accelerate, D decelerate.
- *   A sequence longer than `maxManeuvers` keeps its first `maxManeuvers` codes and ends in "+".
- * - occ: the neighbour slots (SLOTS names, SLOTS order) occupied for more than `occupiedAbove` of
- *   the window; "-" if none.
+ * - lateral ("lane-changes", default): the ego's lane changes in order, LCL left and LCR right,
+ *   joined by ">"; "LK" when it kept its lane. "sequence": every lateral maneuver in order
+ *   (LK lane keep, LCL, LCR) as extraction collapsed them. A sequence longer than `maxManeuvers`
+ *   keeps its first `maxManeuvers` codes and ends in "+".
+ * - longitudinal ("set", default): which of accelerate (A) and decelerate (D) occur, "A", "D" or
+ *   "A+D", and "K" when the ego only kept its speed; "sequence": every longitudinal maneuver in
+ *   order (K, A, D) joined by ">"; "none" leaves the part out (the key then has three parts).
+ * - occ ("sides", default): which of ahead, behind, left (any left-lane slot), right (any right-lane
+ *   slot) is occupied; "slots": the SLOTS names. A slot counts as occupied when its occupancy share
+ *   is above `occupiedAbove`. "-" when none.
  * - ev: the scene event kinds seen in the window (SCENE_EVENTS order), then the criticality flags
  *   (alphabetical) when `includeFlags`; each listed once; "-" if none.
+ *
+ * The defaults are deliberately coarse: a key that tells every detail apart makes most windows a
+ * kind of their own, and then "seen once" no longer means "rare".
  */
 export interface TypeKeyOptions {
+  /** Lateral part (default "lane-changes"). */
+  lateral?: "lane-changes" | "sequence";
+  /** Longitudinal part (default "set"). */
+  longitudinal?: "set" | "sequence" | "none";
+  /** Occupancy part (default "sides"). */
+  occupancy?: "sides" | "slots";
   /** A slot counts as occupied when its occupancy share is strictly above this (default 0.5). */
   occupiedAbove?: number;
-  /** Longest maneuver sequence kept per axis before it is cut and marked "+" (default 3). */
+  /** Longest sequence kept before it is cut and marked "+" (default 3). */
   maxManeuvers?: number;
-  /** Include the longitudinal sequence (default true). */
-  includeLongitudinal?: boolean;
   /** Append the scenario's criticality flags (e.g. "harsh-braking") to the events (default true). */
   includeFlags?: boolean;
 }
 
 interface TypeKeyDefaults {
+  lateral: "lane-changes" | "sequence";
+  longitudinal: "set" | "sequence" | "none";
+  occupancy: "sides" | "slots";
   occupiedAbove: number;
   maxManeuvers: number;
-  includeLongitudinal: boolean;
   includeFlags: boolean;
 }
 export type ResolvedTypeKeyOptions = Required<TypeKeyDefaults>;
 
 export const TYPE_KEY_DEFAULTS: Readonly<TypeKeyDefaults> = {
+  lateral: "lane-changes",
+  longitudinal: "set",
+  occupancy: "sides",
   occupiedAbove: 0.5,
   maxManeuvers: 3,
-  includeLongitudinal: true,
   includeFlags: true,
 };
 
@@ -62,6 +77,12 @@ export function resolveTypeKeyOptions(options: TypeKeyOptions = {}): ResolvedTyp
     throw new InputError(`occupiedAbove=${o.occupiedAbove} should be a share in [0, 1)`, { column: "occupiedAbove", value: o.occupiedAbove });
   if (!(Number.isInteger(o.maxManeuvers) && o.maxManeuvers >= 1))
     throw new InputError(`maxManeuvers=${o.maxManeuvers} should be an integer >= 1`, { column: "maxManeuvers", value: o.maxManeuvers });
+  if (o.lateral !== "lane-changes" && o.lateral !== "sequence")
+    throw new InputError(`lateral="${String(o.lateral)}" should be "lane-changes" or "sequence"`, { column: "lateral", value: o.lateral });
+  if (o.longitudinal !== "set" && o.longitudinal !== "sequence" && o.longitudinal !== "none")
+    throw new InputError(`longitudinal="${String(o.longitudinal)}" should be "set", "sequence" or "none"`, { column: "longitudinal", value: o.longitudinal });
+  if (o.occupancy !== "sides" && o.occupancy !== "slots")
+    throw new InputError(`occupancy="${String(o.occupancy)}" should be "sides" or "slots"`, { column: "occupancy", value: o.occupancy });
   return o;
 }
 
@@ -69,6 +90,10 @@ function sequence(codes: string[], max: number): string {
   if (codes.length === 0) return "-";
   return codes.length > max ? `${codes.slice(0, max).join(">")}+` : codes.join(">");
 }
+
+const SIDES = ["ahead", "behind", "left", "right"] as const;
+/** Side of each slot in SLOTS order. */
+const SLOT_SIDE = SLOTS.map((slot) => (slot.startsWith("left") ? "left" : slot.startsWith("right") ? "right" : slot));
 
 /** The type key of one scenario (see the module comment for the grammar). */
 export function scenarioTypeKey(s: Scenario, options: TypeKeyOptions | ResolvedTypeKeyOptions = {}): string {
@@ -78,22 +103,33 @@ export function scenarioTypeKey(s: Scenario, options: TypeKeyOptions | ResolvedT
     if (c === undefined) throw new InputError(`scenario "${s.id}" has lateral maneuver "${m}"; expected one of ${LATERAL.join(", ")}`, { column: "lateral", value: m });
     return c;
   });
-  const parts = [sequence(lat, o.maxManeuvers)];
-  if (o.includeLongitudinal) {
+  const parts: string[] = [];
+  if (o.lateral === "sequence") parts.push(sequence(lat, o.maxManeuvers));
+  else {
+    const changes = lat.filter((c) => c !== "LK");
+    parts.push(changes.length === 0 ? "LK" : sequence(changes, o.maxManeuvers));
+  }
+  if (o.longitudinal !== "none") {
     const lon = s.longitudinal.map((m) => {
       const c = LONGITUDINAL_CODES[m];
       if (c === undefined)
         throw new InputError(`scenario "${s.id}" has longitudinal maneuver "${m}"; expected one of ${LONGITUDINAL.join(", ")}`, { column: "longitudinal", value: m });
       return c;
     });
-    parts.push(sequence(lon, o.maxManeuvers));
+    if (o.longitudinal === "sequence") parts.push(sequence(lon, o.maxManeuvers));
+    else {
+      const present = ["A", "D"].filter((c) => lon.includes(c));
+      parts.push(present.length === 0 ? "K" : present.join("+"));
+    }
   }
   if (s.slotOccupancy.length !== SLOTS.length)
     throw new InputError(`scenario "${s.id}" has ${s.slotOccupancy.length} slot occupancy values; expected ${SLOTS.length} (SLOTS order)`, {
       column: "slotOccupancy",
       value: s.slotOccupancy.length,
     });
-  const occ = SLOTS.filter((_, k) => s.slotOccupancy[k]! > o.occupiedAbove);
+  const occupiedSlots = SLOTS.map((_, k) => s.slotOccupancy[k]! > o.occupiedAbove);
+  const occ: string[] =
+    o.occupancy === "slots" ? SLOTS.filter((_, k) => occupiedSlots[k]) : SIDES.filter((side) => SLOT_SIDE.some((sd, k) => sd === side && occupiedSlots[k]));
   parts.push(`occ:${occ.length > 0 ? occ.join(",") : "-"}`);
   const kinds = new Set(s.events.map((e) => e.kind as string));
   const ev: string[] = SCENE_EVENTS.filter((k) => kinds.has(k));
@@ -128,7 +164,8 @@ export function parseTypeKey(key: string): TypeKeyParts {
   const seq = (p: string): { items: string[]; cut: boolean } => {
     const cut = p.endsWith("+");
     const body = cut ? p.slice(0, -1) : p;
-    return { items: body === "-" ? [] : body.split(">"), cut };
+    // "A+D" (a set) splits on "+", sequences on ">".
+    return { items: body === "-" ? [] : body.split(/[>+]/), cut };
   };
   const list = (p: string, prefix: string): string[] => {
     if (!p.startsWith(prefix)) throw new InputError(`type key "${key}": part "${p}" should start with "${prefix}"`, { value: key });

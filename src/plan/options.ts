@@ -18,7 +18,7 @@ export interface TestPlanOptions {
   ttcBelow?: number;
   /** … or its minimum time headway is below this (s; default 0.5, common practice). */
   thwBelow?: number;
-  /** … or the ego's peak deceleration is above this (m/s²; default 6, common practice for emergency braking). */
+  /** … or the ego's peak deceleration is above this (m/s²; default 4, about 0.4 g: common practice for hard braking). */
   decelAbove?: number;
   /** … or it carries one of these criticality flags (default none). */
   criticalFlags?: string[];
@@ -70,7 +70,7 @@ export const PLAN_DEFAULTS: Readonly<PlanDefaults> = {
   weightBy: "km",
   ttcBelow: 1.5,
   thwBelow: 0.5,
-  decelAbove: 6,
+  decelAbove: 4,
   criticalFlags: [],
   criticalPolicy: "each",
   includeNoise: true,
