@@ -80,21 +80,26 @@ export function scanTable(
         .join(" ");
       kindExpr = `CAST(CASE WHEN ${sqlIdent(names.kind)} IS NULL THEN ${KIND_EMPTY} ELSE CASE ${k} ${cases} ELSE ${KIND_UNRECOGNISED} END END AS DOUBLE)`;
     }
-    const badExpr = checks.length > 0 ? `CAST(${checks.join(" + ")} AS DOUBLE)` : "CAST(0 AS DOUBLE)";
-    const sql = `SELECT ${[rowExpr, badExpr, ...exprs, ...(kindExpr ? [kindExpr] : [])].join(", ")} FROM ${source}`;
+    // Typed Parquet columns need no check: the mask column is left out then (one column less to fetch).
+    const badExpr = checks.length > 0 ? [`CAST(${checks.join(" + ")} AS DOUBLE)`] : [];
+    const sql = `SELECT ${[rowExpr, ...badExpr, ...exprs, ...(kindExpr ? [kindExpr] : [])].join(", ")} FROM ${source}`;
     let data: Awaited<ReturnType<typeof fetchDoubles>>;
     try {
       data = await fetchDoubles(c, sql);
     } catch (e) {
       throw new InputError(`cannot read as ${format === "csv" ? "CSV" : "Parquet"}: ${duckdbMessage(e)}`, { file });
     }
-    const [row, bad] = data.columns as [Float64Array, Float64Array];
+    const row = data.columns[0]!;
+    const base = 1 + badExpr.length; // index of the first value column
     // A value that is not a number is a structural error: report the first one in file order.
     let first = -1;
-    for (let i = 0; i < data.rows; i++)
-      if (bad[i] !== 0 && (first < 0 || row[i]! < row[first]!)) first = i;
+    if (badExpr.length > 0) {
+      const bad = data.columns[1]!;
+      for (let i = 0; i < data.rows; i++)
+        if (bad[i] !== 0 && (first < 0 || row[i]! < row[first]!)) first = i;
+    }
     if (first >= 0) {
-      const mask = bad[first]!;
+      const mask = data.columns[1]![first]!;
       const j = scanned.findIndex((_, k) => Math.floor(mask / 2 ** k) % 2 === 1);
       const name = names[scanned[j]!]!;
       const value = await rawValue(c, source, format, name, row[first]!);
@@ -103,13 +108,13 @@ export function scanTable(
     const columns: RawTable["columns"] = {};
     const empty: RawTable["empty"] = {};
     scanned.forEach((col, j) => {
-      columns[col] = data.columns[2 + j];
-      const nul = data.nulls[2 + j];
+      columns[col] = data.columns[base + j];
+      const nul = data.nulls[base + j];
       if (nul) empty[col] = nul;
     });
     let unrecognisedKinds: string[] = [];
     if (kindExpr) {
-      const codes = data.columns[2 + scanned.length]!;
+      const codes = data.columns[base + scanned.length]!;
       columns.kind = codes;
       if (codes.includes(KIND_UNRECOGNISED)) {
         const id = sqlIdent(names.kind!);
