@@ -6,6 +6,7 @@ import { InputError } from "../src/core/errors.js";
 import { sha256Text } from "../src/core/io.js";
 import { Rng } from "../src/core/rng.js";
 import { generateTraffic, type GeneratedTraffic } from "../src/synth/generateTraffic.js";
+import { SAMPLE_DATA_OPTIONS, writeSampleData } from "../src/synth/sampleData.js";
 import { readGroundTruth } from "../src/synth/truthFile.js";
 import { writeGeneratedTraffic } from "../src/synth/writeGeneratedTraffic.js";
 
@@ -121,5 +122,22 @@ describe("writeGeneratedTraffic determinism", () => {
 
   it("rejects an unknown format", async () => {
     await expect(writeGeneratedTraffic(join(root, "bad"), a, { format: "xlsx" as never })).rejects.toThrow(/format="xlsx" should be "csv" or "parquet"/);
+  });
+
+  it("writeSampleData reproduces the committed sample-data/orrowind byte for byte (within the 10 MB budget)", async () => {
+    const dir = join(root, "sample");
+    const { traffic } = await writeSampleData(dir);
+    const committed = join(import.meta.dirname, "..", "sample-data", "orrowind");
+    const [fresh, stored] = await Promise.all([digests(dir), digests(committed)]);
+    expect(fresh).toEqual(stored);
+    let bytes = 0;
+    for (const f of await readdir(committed)) bytes += (await readFile(join(committed, f))).length;
+    expect(bytes).toBeLessThan(10 * 2 ** 20);
+    // The sample's recipe: 3 lanes, 25 Hz, 0.1 m noise, planted events, 300–400 vehicle-km.
+    expect(SAMPLE_DATA_OPTIONS.traffic.positionNoiseSd).toBe(0.1);
+    expect(traffic.recording.road.laneMarkings.length).toBe(4);
+    expect(traffic.stats.vehicleKm).toBeGreaterThanOrEqual(300);
+    expect(traffic.stats.vehicleKm).toBeLessThan(400);
+    expect(traffic.truth.planted.length).toBeGreaterThan(10);
   });
 });

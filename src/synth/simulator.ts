@@ -366,13 +366,18 @@ export class Simulator {
         const u = list[i]!;
         let j = i + 1;
         let unaware = false;
-        // A planted cut-in stays unseen by its victim until the crossing, unless bumpers nearly touch.
+        // A planted cut-in stays unseen by its victim until the crossing, unless the bumpers nearly
+        // touch or the victim closes in fast (time to collision under 2 s).
         while (j < n) {
           const l = list[j]!;
-          if (l.hiddenFrom === u && !l.crossed && gapBetween(u, l) > 2) {
-            unaware = true;
-            j++;
-            continue;
+          if (l.hiddenFrom === u && !l.crossed) {
+            const gap = gapBetween(u, l);
+            const closing = u.v - l.v;
+            if (gap > 2 && !(closing > 0 && gap < 2 * closing)) {
+              unaware = true;
+              j++;
+              continue;
+            }
           }
           break;
         }
@@ -639,8 +644,12 @@ export class Simulator {
     const dMax = Math.max(dMin, Math.min(5, o.laneChangeDurationMax));
     const d = sampleLaneChangeDuration(r, o.laneChangeDurationMean, o.laneChangeDurationSd, dMin, dMax);
     const candidates: [Vehicle, number, Vehicle, number, number][] = [];
+    // Vehicles already involved in a planted cut-in (as cutter or as the unaware follower) are left alone.
+    const involved = new Set<Vehicle>();
+    for (const w of this.vehicles) if (w.hiddenFrom && !w.crossed) involved.add(w.hiddenFrom);
     for (const u of this.vehicles) {
       if (u.x < lo || u.x > hi || u.lcTo >= 0 || u.held || !u.allowLaneChange || u.v < 15 || t < u.brakeUntilMs) continue;
+      if (involved.has(u)) continue;
       if (u.a < -0.5) continue;
       for (const dir of [-1, 1]) {
         const tl = u.lane + dir;
@@ -649,7 +658,8 @@ export class Simulator {
         const k = upperBound(list, u.x);
         const nl = k < list.length ? list[k]! : null;
         const nf = k > 0 ? list[k - 1]! : null;
-        if (!nf || nf.lcTo >= 0 || nf.lane !== tl || nf.held || nf.v < 15 || u.v < nf.v - 3) continue;
+        if (!nf || nf.lcTo >= 0 || nf.lane !== tl || nf.held || nf.v < 15 || u.v < nf.v - 3 || involved.has(nf)) continue;
+        if (t < nf.brakeUntilMs) continue;
         if (nl && (gapBetween(u, nl) < 20 || nl.v < u.v - 2)) continue;
         const back = gapBetween(nf, u);
         if (back < 2) continue;
