@@ -335,6 +335,16 @@ describe("readRecording validation", () => {
     expect(rec.rejected).toEqual([{ trackId: 2, reason: "only one sample: speed and acceleration cannot be derived", row: 3, rows: 1 }]);
   });
 
+  it("rejects a file without data rows and a Parquet column of a non-numeric type", async () => {
+    const d = dir("empty");
+    const f = join(d, "e.csv");
+    writeFileSync(f, "track_id,t,x,y\n");
+    expect((await inputError(readRecording(f, { road: ROAD }))).message).toBe(`${f}: the file has no data rows`);
+    const g = join(d, "b.parquet");
+    await duck(`COPY (SELECT 1 AS track_id, 0.0 AS t, true AS x, 1.0 AS y) TO '${g}' (FORMAT parquet)`);
+    expect((await inputError(readRecording(g, { road: ROAD }))).message).toBe(`${g}, column "x": column has type BOOLEAN; expected numbers`);
+  });
+
   it("names the file when it does not exist or is not CSV", async () => {
     const f = join(tmp, "nope.csv");
     const e = await inputError(readRecording(f, { road: ROAD }));
