@@ -361,3 +361,13 @@ print(json.dumps([f"{list(e.path)}: {e.message}" for e in errs[:10]]))`,
     expect(Number(r.stdout.trim())).toBe(2);
   });
 });
+
+describe("formatPercent", () => {
+  it("never rounds a share just below 1 up to 100 %", async () => {
+    const { formatPercent } = await import("../src/plan/index.js");
+    expect(formatPercent(1)).toBe("100 %");
+    expect(formatPercent(0.99996)).toBe("99.996 %");
+    expect(formatPercent(0.873)).toBe("87.3 %");
+    expect(formatPercent(0.000412)).toBe("0.0412 %");
+  });
+});

@@ -14,7 +14,10 @@ export function formatPercent(share: number): string {
   if (!Number.isFinite(share)) return "n/a";
   const p = 100 * share;
   if (p === 0) return "0 %";
-  if (p >= 99.95 && p < 100) return `${p.toFixed(2)} %`;
+  // Never round a share just below 100 % up to "100 %": add decimals until it stays below.
+  if (p > 99.5 && p < 100) {
+    for (let d = 1; d <= 12; d++) if (Number(p.toFixed(d)) < 100) return `${Number(p.toFixed(d))} %`;
+  }
   return `${trimNumber(p)} %`;
 }
 
