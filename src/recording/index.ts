@@ -8,6 +8,6 @@ export { readRoad, validateRoad, writeRoad, roadToRoadFrame } from "./readRoad.j
 export { writeTracks, tracksCsv } from "./writeTracks.js";
 export { TRACK_COLUMNS, resolveColumns } from "./columns.js";
 export type { TrackColumn, ColumnMapping, ResolvedColumns } from "./columns.js";
-export { unitFactors, LENGTH_TO_M, SPEED_TO_MS, ACCELERATION_TO_MS2, TIME_TO_S } from "./units.js";
-export type { UnitMapping, UnitFactors, LengthUnit, SpeedUnit, AccelerationUnit, TimeUnit } from "./units.js";
+export { unitFactors, toSI, LENGTH_TO_M, SPEED_TO_MS, ACCELERATION_TO_MS2, TIME_TO_S } from "./units.js";
+export type { UnitMapping, UnitFactors, Ratio, LengthUnit, SpeedUnit, AccelerationUnit, TimeUnit } from "./units.js";
 export { DEFAULT_SIZES, KIND_NAMES } from "./kinds.js";
