@@ -84,8 +84,11 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
   }
 
   progress?.({ stage: "read", done: 0, total: 1, message: `reading ${tracksPath}` });
-  const checksum = await sha256File(tracksPath);
+  // Hash the bytes while DuckDB scans the file on its own threads.
+  const checksumPromise = sha256File(tracksPath);
+  checksumPromise.catch(() => {}); // awaited below; avoid an unhandled rejection if the scan throws first
   const raw = await scanTable(tracksPath, format, o.mapping);
+  const checksum = await checksumPromise;
   if (o.lanes === "file" && raw.names.lane === undefined)
     throw new InputError(`lanes: "file" needs a lane column; the file has none (map it with mapping.lane)`, { file: tracksPath });
   progress?.({ stage: "read", done: 1, total: 1, message: `${raw.rows} rows` });
