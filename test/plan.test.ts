@@ -371,3 +371,22 @@ describe("formatPercent", () => {
     expect(formatPercent(0.000412)).toBe("0.0412 %");
   });
 });
+
+describe("criticalReasons", () => {
+  it("names each crossed threshold; a cut-in counts with a tighter-than-1 s headway", async () => {
+    const { criticalReasons, resolveTestPlanOptions } = await import("../src/plan/index.js");
+    const o = resolveTestPlanOptions();
+    const calm = makeScenario(0, { criticality: { minTtc: 4, minThw: 0.8, maxDrac: 1, maxDecel: 2, flags: ["thw"] } });
+    expect(criticalReasons(calm, o)).toEqual([]);
+    const cutIn = { ...calm, events: [{ kind: "cut-in" as const, t: 1, other: 9 }] };
+    expect(criticalReasons(cutIn, o)).toEqual(["critical: cut-in with min time headway 0.8 s < 1 s"]);
+    expect(criticalReasons(cutIn, resolveTestPlanOptions({ cutInThwBelow: 0 }))).toEqual([]);
+    const hard = makeScenario(1, { criticality: { minTtc: 1.2, minThw: 0.4, maxDrac: 6, maxDecel: 4.5, flags: ["thw"] } });
+    expect(criticalReasons(hard, resolveTestPlanOptions({ criticalFlags: ["thw"] }))).toEqual([
+      "critical: min TTC 1.2 s < 1.5 s",
+      "critical: min time headway 0.4 s < 0.5 s",
+      "critical: peak deceleration 4.5 m/s² > 4 m/s²",
+      'critical: flag "thw"',
+    ]);
+  });
+});

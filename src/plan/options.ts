@@ -18,6 +18,8 @@ export interface TestPlanOptions {
   ttcBelow?: number;
   /** … or its minimum time headway is below this (s; default 0.5, common practice). */
   thwBelow?: number;
+  /** … or a cut-in happens in the window and its minimum time headway is below this (s; default 1.0, common practice). */
+  cutInThwBelow?: number;
   /** … or the ego's peak deceleration is above this (m/s²; default 4, about 0.4 g: common practice for hard braking). */
   decelAbove?: number;
   /** … or it carries one of these criticality flags (default none). */
@@ -54,6 +56,7 @@ interface PlanDefaults {
   weightBy: "km" | "hours";
   ttcBelow: number;
   thwBelow: number;
+  cutInThwBelow: number;
   decelAbove: number;
   criticalFlags: string[];
   criticalPolicy: CriticalPolicy;
@@ -70,6 +73,7 @@ export const PLAN_DEFAULTS: Readonly<PlanDefaults> = {
   weightBy: "km",
   ttcBelow: 1.5,
   thwBelow: 0.5,
+  cutInThwBelow: 1.0,
   decelAbove: 4,
   criticalFlags: [],
   criticalPolicy: "each",
@@ -108,6 +112,7 @@ export function resolveTestPlanOptions(options: TestPlanOptions = {}): ResolvedT
   if (o.weightBy !== "km" && o.weightBy !== "hours") bad("weightBy", o.weightBy, `"km" or "hours"`);
   if (!(o.ttcBelow >= 0)) bad("ttcBelow", o.ttcBelow, "a time in s >= 0");
   if (!(o.thwBelow >= 0)) bad("thwBelow", o.thwBelow, "a time in s >= 0");
+  if (!(o.cutInThwBelow >= 0)) bad("cutInThwBelow", o.cutInThwBelow, "a time in s >= 0 (0 switches it off)");
   if (!(o.decelAbove > 0)) bad("decelAbove", o.decelAbove, "a deceleration in m/s² > 0 (Infinity switches it off)");
   if (!Array.isArray(o.criticalFlags) || o.criticalFlags.some((f) => typeof f !== "string")) bad("criticalFlags", o.criticalFlags, "an array of flag names");
   if (o.criticalPolicy !== "each" && o.criticalPolicy !== "most-critical-per-type")
