@@ -75,6 +75,19 @@ describe("medoids", () => {
     }
   });
 
+  it("clusters made of several separated blobs (the grouped-bound path) still give the brute-force medoid", () => {
+    for (const d of [2, 8, 32]) {
+      // 3 blobs of 400 rows each, all labelled as one cluster, plus a second single-blob cluster.
+      const { X, truth } = makeBlobs(1600, d, 4, { seed: 40 + d, std: 1, box: 10 });
+      const labels = Int32Array.from(truth, (t) => (t < 3 ? 0 : 1));
+      const r = medoids(X, labels);
+      const b = bruteMedoids(X, labels);
+      expect(Array.from(r.indices), `d=${d}`).toEqual(b.indices);
+      expect(Math.abs(r.distanceSums[0]! - b.sums[0]!) / b.sums[0]!).toBeLessThan(1e-12);
+      expect(r.evaluated[0]!).toBeLessThan(400);
+    }
+  });
+
   it("medoids: ties go to the lowest row, noise (-1) is left out, tiny and empty clusters are handled", () => {
     // Rows 0 and 1 are identical (a tie), row 2 is noise far away, cluster 1 has one row, cluster 2 none.
     const X: Matrix = { data: new Float64Array([0, 0, 0, 0, 100, 100, 5, 5, 1, 0]), rows: 5, cols: 2 };

@@ -2,6 +2,7 @@ import type { Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
 import { checkLabels, checkMatrix } from "./_validate.js";
 import { symmetricEigen } from "../embed/_symEigen.js";
+import { kmeans } from "./kmeans.js";
 
 export interface MedoidsOptions {
   progress?: Progress;
@@ -39,7 +40,10 @@ const MARGIN = 1e-9;
  *  - trimed bound (Newling & Fleuret, "A sub-quadratic exact medoid algorithm", AISTATS 2017): after
  *    evaluating S(i) with all distances d(i, j), S(j) >= |S(i) - m·d(i, j)|.
  * The moment bound is what prunes in high dimension where distances concentrate; the trimed bound is
- * what prunes in low dimension.
+ * what prunes in low dimension. When a cluster has several modes (two blobs merged, say) the
+ * whole-cluster moments are loose; after a few exact evaluations the cluster is split into up to 8
+ * groups by a small seeded k-means and each member's bound becomes the sum of its per-group bounds
+ * (S(x) = Σ_groups S_g(x), each bounded as above), which is tight again.
  */
 export function medoids(X: Matrix, labels: Int32Array, options: MedoidsOptions = {}): MedoidsResult {
   checkMatrix(X, "X");
@@ -103,24 +107,45 @@ function distanceSum(X: Float64Array, d: number, xi: number, rows: Int32Array, o
   return sum;
 }
 
+/** Exact evaluations tried with the whole-cluster bound before the cluster is split into groups. */
+const SINGLE_GROUP_BUDGET = 24;
+
 export function exactMedoid(X: Float64Array, d: number, rows: Int32Array): { index: number; sum: number; evaluated: number } {
   const m = rows.length;
   if (m <= 2) {
     // One row, or two rows with equal sums: the lowest index.
     return { index: rows[0]!, sum: m === 1 ? 0 : distanceSum(X, d, rows[0]!, rows, null), evaluated: m };
   }
-  const mb = new MomentBounds(X, d, rows);
-  const order = Int32Array.from({ length: m }, (_, i) => i).sort((a, b) => mb.cheap[a]! - mb.cheap[b]! || a - b);
+  const whole = new MomentBounds(X, d, rows, 8);
+  const lb = new Float64Array(m);
+  for (let j = 0; j < m; j++) lb[j] = whole.bound(X, rows[j]! * d);
+  let order = Int32Array.from({ length: m }, (_, i) => i).sort((a, b) => lb[a]! - lb[b]! || a - b);
   const tri = new Float64Array(m); // trimed bounds, 0 = none yet
   const dist = new Float64Array(m);
   let best = Infinity;
   let bestIdx = -1;
   let evaluated = 0;
-  for (let o = 0; o < m; o++) {
+  let grouped = false;
+  for (let o = 0; o < order.length; o++) {
     const p = order[o]!;
-    if (mb.cheap[p]! * (1 - MARGIN) > best) break; // sorted: no later member can win
+    if (lb[p]! * (1 - MARGIN) > best) break; // sorted: no later member can win
     if (tri[p]! * (1 - MARGIN) > best) continue;
-    if (mb.tight(p) * (1 - MARGIN) > best) continue;
+    if (!grouped && evaluated >= SINGLE_GROUP_BUDGET && m >= 512) {
+      // The whole-cluster bound is not pruning (a cluster of several modes): bound each member by
+      // the sum of per-group bounds over a small k-means split, and go on with the members left.
+      grouped = true;
+      const groups = splitIntoGroups(X, d, rows, Math.min(8, Math.floor(m / 64)));
+      const rest = Array.from(order.subarray(o)).filter((q) => Math.max(lb[q]!, tri[q]!) * (1 - MARGIN) <= best);
+      for (const q of rest) {
+        let s = 0;
+        for (const g of groups) s += g.bound(X, rows[q]! * d);
+        if (s > lb[q]!) lb[q] = s;
+      }
+      order = Int32Array.from(rest).sort((a, b) => lb[a]! - lb[b]! || a - b);
+      o = -1;
+      continue;
+    }
+    if (whole.tight(X, rows[p]! * d) * (1 - MARGIN) > best) continue;
     const s = distanceSum(X, d, rows[p]!, rows, dist);
     evaluated++;
     tri[p] = s;
@@ -136,29 +161,40 @@ export function exactMedoid(X: Float64Array, d: number, rows: Int32Array): { ind
   return { index: bestIdx, sum: best, evaluated };
 }
 
+/** Split a cluster's rows into up to g groups with a small seeded k-means; one MomentBounds per group. */
+function splitIntoGroups(X: Float64Array, d: number, rows: Int32Array, g: number): MomentBounds[] {
+  const m = rows.length;
+  const sub: Matrix = { data: new Float64Array(m * d), rows: m, cols: d };
+  for (let j = 0; j < m; j++) sub.data.set(X.subarray(rows[j]! * d, rows[j]! * d + d), j * d);
+  const fit = kmeans(sub, g, { seed: 0, nInit: 1, maxIter: 10, tol: 1e-3, threads: 1, initSampleSize: Math.min(m, 4000) });
+  const members: number[][] = Array.from({ length: g }, () => []);
+  for (let j = 0; j < m; j++) members[fit.labels[j]!]!.push(rows[j]!);
+  return members.filter((r) => r.length > 0).map((r) => new MomentBounds(X, d, Int32Array.from(r), 4));
+}
+
 /**
- * Lower bounds on every member's distance sum from the cluster's moments (see medoids). `cheap`
- * replaces vᵀ Cov v by an upper bound from Cov's top 8 eigenpairs (the rest bounded by the 9th
- * eigenvalue), O(8·d) per member; `tight(j)` uses vᵀ Cov v itself, O(d²), and is only
- * computed for members the cheap bound did not rule out.
+ * Lower bounds on S(x) = Σ_j |x - y_j| over a set of rows y_j, for any point x, from the set's
+ * moments (see medoids). `bound` replaces vᵀ Cov v by an upper bound from Cov's top r eigenpairs (the
+ * rest bounded by the (r+1)-th eigenvalue), O(r·d); `tight` uses vᵀ Cov v itself, O(d²).
  */
 class MomentBounds {
-  readonly cheap: Float64Array;
-  private readonly X: Float64Array;
   private readonly d: number;
-  private readonly rows: Int32Array;
+  private readonly m: number;
   private readonly mean: Float64Array;
   private readonly cov: Float64Array;
   private readonly c3: Float64Array;
   private readonly T: number;
   private readonly varR2: number;
+  private readonly r: number;
+  private readonly lam: Float64Array;
+  private readonly vecs: Float64Array;
+  private readonly lamRest: number;
   private readonly v: Float64Array;
 
-  constructor(X: Float64Array, d: number, rows: Int32Array) {
-    this.X = X;
+  constructor(X: Float64Array, d: number, rows: Int32Array, rank: number) {
     this.d = d;
-    this.rows = rows;
     const m = rows.length;
+    this.m = m;
     const mean = new Float64Array(d);
     for (let j = 0; j < m; j++) {
       const o = rows[j]! * d;
@@ -203,7 +239,6 @@ class MomentBounds {
       c3[a]! /= m;
       for (let b = a; b < d; b++) cov[a * d + b]! /= m;
     }
-    // Top eigenpairs of Cov: vᵀ Cov v <= Σ_{k<r} λ_k (e_k·v)² + λ_r (|v|² - Σ_{k<r} (e_k·v)²).
     const full = new Float64Array(d * d);
     for (let a = 0; a < d; a++)
       for (let b = a; b < d; b++) {
@@ -211,9 +246,10 @@ class MomentBounds {
         full[b * d + a] = cov[a * d + b]!;
       }
     const eig = symmetricEigen(full, d);
-    const r = Math.min(d, 8);
-    const lam = eig.values;
-    const lamRest = r < d ? Math.max(0, lam[r]!) : 0;
+    this.r = Math.min(d, rank);
+    this.lam = eig.values;
+    this.vecs = eig.vectors;
+    this.lamRest = this.r < d ? Math.max(0, eig.values[this.r]!) : 0;
     // Off-diagonal entries doubled so vᵀ Cov v is a sum over the upper triangle in tight().
     for (let a = 0; a < d; a++) for (let b = a + 1; b < d; b++) cov[a * d + b]! *= 2;
     this.mean = mean;
@@ -222,34 +258,10 @@ class MomentBounds {
     this.T = T;
     this.varR2 = varR2;
     this.v = new Float64Array(d);
-    const cheap = new Float64Array(m);
-    for (let j = 0; j < m; j++) {
-      const o = rows[j]! * d;
-      let vv = 0;
-      let vc3 = 0;
-      const v = this.v;
-      for (let t = 0; t < d; t++) {
-        const x = X[o + t]! - mean[t]!;
-        v[t] = x;
-        vv += x * x;
-        vc3 += x * c3[t]!;
-      }
-      let top = 0;
-      let proj2 = 0;
-      for (let k = 0; k < r; k++) {
-        const eo = k * d;
-        let p = 0;
-        for (let t = 0; t < d; t++) p += eig.vectors[eo + t]! * v[t]!;
-        proj2 += p * p;
-        top += Math.max(0, lam[k]!) * p * p;
-      }
-      const q = top + lamRest * Math.max(0, vv - proj2);
-      cheap[j] = this.bound(m, vv, vc3, q * (1 + 1e-12));
-    }
-    this.cheap = cheap;
   }
 
-  private bound(m: number, vv: number, vc3: number, q: number): number {
+  private combine(vv: number, vc3: number, q: number): number {
+    const m = this.m;
     const A = vv + this.T;
     const V = Math.max(0, this.varR2 - 4 * vc3 + 4 * q);
     const moment = A > 0 ? m * (Math.sqrt(A) - V / (2 * A * Math.sqrt(A))) : 0;
@@ -257,17 +269,39 @@ class MomentBounds {
     return Math.max(0, moment, centroid);
   }
 
-  tight(j: number): number {
-    const { X, d, mean, c3, cov, v } = this;
-    const o = this.rows[j]! * d;
+  /** Centre x (row at offset xo of X) into this.v; returns [|v|², v·c3]. */
+  private centre(X: Float64Array, xo: number): [number, number] {
+    const { d, mean, c3, v } = this;
     let vv = 0;
     let vc3 = 0;
     for (let t = 0; t < d; t++) {
-      const x = X[o + t]! - mean[t]!;
+      const x = X[xo + t]! - mean[t]!;
       v[t] = x;
       vv += x * x;
       vc3 += x * c3[t]!;
     }
+    return [vv, vc3];
+  }
+
+  bound(X: Float64Array, xo: number): number {
+    const [vv, vc3] = this.centre(X, xo);
+    const { d, r, lam, vecs, v } = this;
+    let top = 0;
+    let proj2 = 0;
+    for (let k = 0; k < r; k++) {
+      const eo = k * d;
+      let p = 0;
+      for (let t = 0; t < d; t++) p += vecs[eo + t]! * v[t]!;
+      proj2 += p * p;
+      top += Math.max(0, lam[k]!) * p * p;
+    }
+    const q = top + this.lamRest * Math.max(0, vv - proj2);
+    return this.combine(vv, vc3, q * (1 + 1e-12));
+  }
+
+  tight(X: Float64Array, xo: number): number {
+    const [vv, vc3] = this.centre(X, xo);
+    const { d, cov, v } = this;
     let q = 0;
     for (let a = 0; a < d; a++) {
       const row = a * d;
@@ -275,6 +309,6 @@ class MomentBounds {
       for (let b = a; b < d; b++) s += cov[row + b]! * v[b]!;
       q += v[a]! * s;
     }
-    return this.bound(this.rows.length, vv, vc3, q);
+    return this.combine(vv, vc3, q);
   }
 }
