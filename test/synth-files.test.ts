@@ -28,6 +28,9 @@ async function digests(dir: string): Promise<Record<string, string>> {
   return out;
 }
 
+// Sources: reproducibility rule "same input + seed ⇒ byte-identical output" and the input table
+// layout (one row per object per frame) from the project design brief (DESIGN.md §2); SHA-256 via
+// node:crypto; Parquet contents checked with DuckDB as an independent reader.
 describe("writeGeneratedTraffic determinism", () => {
   for (const format of ["csv", "parquet"] as const) {
     it(`same seed ⇒ byte-identical ${format} files; different seed ⇒ different tracks`, async () => {

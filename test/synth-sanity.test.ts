@@ -126,6 +126,8 @@ describe("generateTraffic sanity", () => {
   });
 
   it("planted events occur at the configured rate per vehicle-km (inside a Poisson 99.9 % interval)", () => {
+    // Events are planted as a Poisson process on the vehicle-km clock, so the count is Poisson(rate · km)
+    // (minus the few still waiting at the end); the interval uses the Poisson CDF computed exactly.
     const mu = RATE * g.stats.vehicleKm;
     for (const kind of ["hard-braking", "tight-cut-in"] as const) {
       const n = g.truth.planted.filter((p) => p.kind === kind).length;
@@ -201,6 +203,7 @@ describe("generateTraffic sanity", () => {
   });
 
   it("position noise has the configured sd and leaves the clean truth untouched", () => {
+    // Source: sampling distribution of the sd of n normal draws (relative standard error ≈ 1/√(2n)).
     const opts = { vehicleKm: 40, hardBrakingRate: 0.02, tightCutInRate: 0.02 };
     const clean = generateTraffic({ ...opts, positionNoiseSd: 0 }, new Rng(99));
     const noisy = generateTraffic({ ...opts, positionNoiseSd: 0.1 }, new Rng(99));
@@ -295,6 +298,7 @@ describe("labelLongitudinalTruth", () => {
   });
 });
 
+// Sources: run-length encoding worked by hand; error message style from the project rules.
 describe("truth file and options", () => {
   it("encodeRuns/decodeRuns round-trip and truthFromJson(truthToJson(t)) restores the truth", () => {
     const codes = Int8Array.from([0, 0, 1, 1, 1, 2, 0]);
