@@ -33,80 +33,88 @@ export function kmeansPlusPlus(X: Matrix, k: number, options: KMeansPlusPlusOpti
   if (sampleSize < X.rows) rows = rng.fork("sample").sampleIndices(X.rows, Math.max(k, Math.floor(sampleSize)));
   const n = rows ? rows.length : X.rows;
   const d = X.cols;
-  const src = X.data;
-  const at = (i: number): number => (rows ? rows[i]! : i) * d;
+  // The (sampled) rows, contiguous.
+  const P = rows ? new Float64Array(n * d) : X.data;
+  if (rows) for (let i = 0; i < n; i++) P.set(X.data.subarray(rows[i]! * d, rows[i]! * d + d), i * d);
   const w = new Float64Array(n);
   for (let i = 0; i < n; i++) w[i] = wAll ? wAll[rows ? rows[i]! : i]! : 1;
 
   const centres = zeros(k, d);
   const closest = new Float64Array(n);
-  const cand = new Float64Array(n);
-  const bestCand = new Float64Array(n);
+  const candDist = new Float64Array(trials * n);
   const cum = new Float64Array(n);
-  const draw = (total: number): number => {
-    // Inverse-CDF lookup: first index whose cumulative mass reaches the drawn value.
+  const ids = new Int32Array(trials);
+  const pots = new Float64Array(trials);
+  // Cumulative sampling mass: weight · D² (or weight alone while every D² is 0).
+  const prepare = (useD2: boolean): number => {
     let acc = 0;
-    for (let i = 0; i < n; i++) cum[i] = acc += total === 0 ? w[i]! : w[i]! * closest[i]!;
-    const u = rng.float() * acc;
+    for (let i = 0; i < n; i++) cum[i] = acc += useD2 ? w[i]! * closest[i]! : w[i]!;
+    return acc;
+  };
+  // Inverse-CDF lookup: first index whose cumulative mass reaches a uniform draw in [0, total).
+  const draw = (total: number): number => {
+    const u = rng.float() * total;
     let lo = 0;
     let hi = n - 1;
     while (lo < hi) {
       const mid = (lo + hi) >>> 1;
-      if (cum[mid]! < u) lo = mid + 1;
+      if (cum[mid]! <= u) lo = mid + 1;
       else hi = mid;
     }
-    // Skip zero-mass rows that share the cumulative value.
-    while (lo < n - 1 && (total === 0 ? w[lo]! : w[lo]! * closest[lo]!) === 0) lo++;
     return lo;
   };
-  const distTo = (ci: number, out: Float64Array): number => {
-    const co = at(ci);
-    let pot = 0;
-    for (let i = 0; i < n; i++) {
-      const xo = at(i);
-      let s = 0;
-      for (let t = 0; t < d; t++) {
-        const a = src[xo + t]! - src[co + t]!;
-        s += a * a;
-      }
-      out[i] = s;
-      pot += w[i]! * s;
-    }
-    return pot;
-  };
 
-  let first = draw(0);
-  let pot = distTo(first, closest);
-  centres.data.set(src.subarray(at(first), at(first) + d), 0);
+  const first = draw(prepare(false));
+  centres.data.set(P.subarray(first * d, first * d + d), 0);
+  let pot = 0;
+  for (let i = 0; i < n; i++) {
+    closest[i] = dist2(P, i * d, P, first * d, d);
+    pot += w[i]! * closest[i]!;
+  }
   for (let c = 1; c < k; c++) {
-    let bestPot = Infinity;
-    let bestId = -1;
-    const drawnFromZero = pot === 0;
-    for (let t = 0; t < trials; t++) {
-      const id = drawnFromZero ? draw(0) : draw(pot);
-      const co = at(id);
-      let p = 0;
-      for (let i = 0; i < n; i++) {
-        const xo = at(i);
-        let s = 0;
-        for (let tt = 0; tt < d; tt++) {
-          const a = src[xo + tt]! - src[co + tt]!;
-          s += a * a;
-        }
-        const m = s < closest[i]! ? s : closest[i]!;
-        cand[i] = m;
-        p += w[i]! * m;
-      }
-      if (p < bestPot) {
-        bestPot = p;
-        bestId = id;
-        bestCand.set(cand);
+    const total = prepare(pot > 0);
+    for (let t = 0; t < trials; t++) ids[t] = draw(total);
+    pots.fill(0);
+    // One pass over the rows for all candidates.
+    for (let i = 0; i < n; i++) {
+      const io = i * d;
+      const ci = closest[i]!;
+      const wi = w[i]!;
+      for (let t = 0; t < trials; t++) {
+        const s = dist2(P, io, P, ids[t]! * d, d);
+        const m = s < ci ? s : ci;
+        candDist[t * n + i] = m;
+        pots[t]! += wi * m;
       }
     }
-    closest.set(bestCand);
-    pot = bestPot;
-    centres.data.set(src.subarray(at(bestId), at(bestId) + d), c * d);
-    first = bestId;
+    let bt = 0;
+    for (let t = 1; t < trials; t++) if (pots[t]! < pots[bt]!) bt = t;
+    closest.set(candDist.subarray(bt * n, bt * n + n));
+    pot = pots[bt]!;
+    centres.data.set(P.subarray(ids[bt]! * d, ids[bt]! * d + d), c * d);
   }
   return centres;
+}
+
+function dist2(A: Float64Array, ao: number, B: Float64Array, bo: number, d: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let t = 0;
+  for (; t + 3 < d; t += 4) {
+    const a0 = A[ao + t]! - B[bo + t]!;
+    const a1 = A[ao + t + 1]! - B[bo + t + 1]!;
+    const a2 = A[ao + t + 2]! - B[bo + t + 2]!;
+    const a3 = A[ao + t + 3]! - B[bo + t + 3]!;
+    s0 += a0 * a0;
+    s1 += a1 * a1;
+    s2 += a2 * a2;
+    s3 += a3 * a3;
+  }
+  for (; t < d; t++) {
+    const a = A[ao + t]! - B[bo + t]!;
+    s0 += a * a;
+  }
+  return s0 + s1 + (s2 + s3);
 }
