@@ -34,7 +34,7 @@ function appendValue(app: DuckDBAppender, col: TableColumn, v: number | string |
 
 async function storeTable(conn: DuckDBConnection, t: Table): Promise<void> {
   const n = tableRows(t);
-  await conn.run(`CREATE TABLE ${t.name} (${t.columns.map((c) => `${c.name} ${c.type}`).join(", ")})`);
+  await conn.run(`CREATE TABLE "${t.name}" (${t.columns.map((c) => `"${c.name}" ${c.type}`).join(", ")})`);
   const app = await conn.createAppender(t.name);
   for (let i = 0; i < n; i++) {
     for (const c of t.columns) appendValue(app, c, c.values[i]);
@@ -60,6 +60,7 @@ export async function writeCatalogue(
   const written: string[] = [];
   const instance = await DuckDBInstance.create(tmp, { threads: "1" });
   const conn = await instance.connect();
+  let ok = false;
   try {
     let k = 0;
     for (const t of tables) {
@@ -71,15 +72,22 @@ export async function writeCatalogue(
       for (const t of tables) {
         const final = join(options.parquetDir, `${t.name}.parquet`);
         const part = join(options.parquetDir, `.${t.name}.parquet.tmp`);
-        await conn.run(`COPY (SELECT * FROM ${t.name}) TO '${part.replace(/'/g, "''")}' (FORMAT parquet)`);
+        await conn.run(`COPY (SELECT * FROM "${t.name}") TO '${part.replace(/'/g, "''")}' (FORMAT parquet)`);
         await rename(part, final);
         written.push(final);
       }
     }
     await conn.run("CHECKPOINT");
+    ok = true;
   } finally {
     conn.closeSync();
     instance.closeSync();
+    if (!ok) {
+      // Leave nothing half-written behind: the temporary database and any partial Parquet files.
+      await rm(tmp, { force: true });
+      await rm(`${tmp}.wal`, { force: true });
+      if (options.parquetDir) for (const t of tables) await rm(join(options.parquetDir, `.${t.name}.parquet.tmp`), { force: true });
+    }
   }
   await rm(`${tmp}.wal`, { force: true });
   await rename(tmp, path);

@@ -1,0 +1,40 @@
+import { join } from "node:path";
+import { writeFileAtomic } from "../core/io.js";
+import type { Progress } from "../core/progress.js";
+import { catalogueTables } from "../catalogue/catalogueTables.js";
+import { writeCatalogue } from "../catalogue/writeCatalogue.js";
+import { writeTestPlan } from "../plan/writeTestPlan.js";
+import { buildReport } from "../report/buildReport.js";
+import { renderHtml } from "../report/html.js";
+import type { PipelineResult } from "./runPipeline.js";
+
+export interface WriteOutputsOptions {
+  /** Write catalogue.duckdb (default true). */
+  catalogue?: boolean;
+  /** Also export every catalogue table to DIR/catalogue/<table>.parquet (default false). */
+  parquet?: boolean;
+  title?: string;
+  progress?: Progress;
+}
+
+/**
+ * Write a run's outputs into `dir`: plan.json, plan.csv, report.html and (by default) the catalogue
+ * database. Every file is written under a temporary name and renamed. Same result, same bytes.
+ */
+export async function writeOutputs(r: PipelineResult, dir: string, options: WriteOutputsOptions = {}): Promise<string[]> {
+  const written = await writeTestPlan(r.plan, dir);
+  options.progress?.({ stage: "report", done: 0, total: 1 });
+  const html = renderHtml(buildReport(r, options.title));
+  const reportPath = join(dir, "report.html");
+  await writeFileAtomic(reportPath, html);
+  written.push(reportPath);
+  options.progress?.({ stage: "report", done: 1, total: 1 });
+  if (options.catalogue !== false) {
+    const files = await writeCatalogue(join(dir, "catalogue.duckdb"), catalogueTables(r), {
+      parquetDir: options.parquet ? join(dir, "catalogue") : undefined,
+      progress: options.progress,
+    });
+    written.push(...files);
+  }
+  return written;
+}

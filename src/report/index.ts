@@ -1,0 +1,21 @@
+/** Report: plotly figure specs (data), the self-contained HTML report, and the notebook adapter. */
+export type { Figure } from "./figure.js";
+export { PALETTE, NOISE_COLOUR, ALERT_COLOUR, clusterColour } from "./figure.js";
+export { scenarioMapFigure } from "./scenarioMapFigure.js";
+export type { ScenarioMapInput } from "./scenarioMapFigure.js";
+export { shareFigure } from "./shareFigure.js";
+export type { ShareBar } from "./shareFigure.js";
+export { kSweepFigure } from "./kSweepFigure.js";
+export type { KSweepRow } from "./kSweepFigure.js";
+export { discoveryFigure } from "./discoveryFigure.js";
+export type { DiscoverySeries } from "./discoveryFigure.js";
+export { criticalityFigure } from "./criticalityFigure.js";
+export type { CriticalityPoint } from "./criticalityFigure.js";
+export { kDistanceFigure } from "./kDistanceFigure.js";
+export { maneuverTimelineFigure } from "./maneuverTimelineFigure.js";
+export { histogramFigure } from "./histogramFigure.js";
+export { tensorFigure } from "./tensorFigure.js";
+export { renderHtml, escapeHtml } from "./html.js";
+export type { ReportDocument, ReportSection, ReportTable } from "./html.js";
+export { buildReport, REPORT_CAUTIONS } from "./buildReport.js";
+export { show, showTable, showText, loadPlotly } from "./notebook.js";
