@@ -53,25 +53,28 @@ export function scanTable(
     const fileColumns = [...types.keys()].filter((n) => !(format === "parquet" && n === "file_row_number"));
     const names = resolveColumns(fileColumns, mapping, file);
 
-    // One SELECT: the row position, every numeric column as DOUBLE, kind as a code, and a bit mask
-    // of the cells that are present but not numbers (bit j for the j-th scanned column).
+    // One SELECT: the row position, a flags column, every numeric column as DOUBLE (NULL → NaN, so
+    // that the values can be copied in bulk) and kind as a code. Flags: bit j = the j-th scanned cell
+    // is present but not a number; bit (16 + j) = it is empty (NULL).
     const scanned: TrackColumn[] = NUMERIC.filter((col) => names[col] !== undefined);
     const exprs: string[] = [];
-    const checks: string[] = [];
+    const flags: string[] = [];
     scanned.forEach((col, j) => {
       const name = names[col]!;
       const id = sqlIdent(name);
       const type = types.get(name)!;
       if (type === "VARCHAR") {
-        exprs.push(`TRY_CAST(${id} AS DOUBLE)`);
-        checks.push(`CASE WHEN ${id} IS NOT NULL AND TRY_CAST(${id} AS DOUBLE) IS NULL THEN ${2 ** j} ELSE 0 END`);
+        exprs.push(`coalesce(TRY_CAST(${id} AS DOUBLE), 'NaN'::DOUBLE)`);
+        flags.push(`CASE WHEN ${id} IS NOT NULL AND TRY_CAST(${id} AS DOUBLE) IS NULL THEN ${2 ** j} ELSE 0 END`);
       } else if (NUMERIC_TYPES.test(type)) {
-        exprs.push(`CAST(${id} AS DOUBLE)`);
+        exprs.push(`coalesce(CAST(${id} AS DOUBLE), 'NaN'::DOUBLE)`);
       } else {
         throw new InputError(`column has type ${type}; expected numbers`, { file, column: name });
       }
+      flags.push(`CASE WHEN ${id} IS NULL THEN ${2 ** (16 + j)} ELSE 0 END`);
     });
     const rowExpr = format === "csv" ? "CAST(row_number() OVER () AS DOUBLE)" : "CAST(file_row_number + 1 AS DOUBLE)";
+    const flagExpr = `CAST(${flags.join(" + ")} AS DOUBLE)`;
     let kindExpr: string | undefined;
     if (names.kind !== undefined) {
       const k = `lower(trim(CAST(${sqlIdent(names.kind)} AS VARCHAR)))`;
@@ -80,26 +83,27 @@ export function scanTable(
         .join(" ");
       kindExpr = `CAST(CASE WHEN ${sqlIdent(names.kind)} IS NULL THEN ${KIND_EMPTY} ELSE CASE ${k} ${cases} ELSE ${KIND_UNRECOGNISED} END END AS DOUBLE)`;
     }
-    // Typed Parquet columns need no check: the mask column is left out then (one column less to fetch).
-    const badExpr = checks.length > 0 ? [`CAST(${checks.join(" + ")} AS DOUBLE)`] : [];
-    const sql = `SELECT ${[rowExpr, ...badExpr, ...exprs, ...(kindExpr ? [kindExpr] : [])].join(", ")} FROM ${source}`;
+    const sql = `SELECT ${[rowExpr, flagExpr, ...exprs, ...(kindExpr ? [kindExpr] : [])].join(", ")} FROM ${source}`;
     let data: Awaited<ReturnType<typeof fetchDoubles>>;
     try {
       data = await fetchDoubles(c, sql);
     } catch (e) {
       throw new InputError(`cannot read as ${format === "csv" ? "CSV" : "Parquet"}: ${duckdbMessage(e)}`, { file });
     }
-    const row = data.columns[0]!;
-    const base = 1 + badExpr.length; // index of the first value column
+    const [row, flag] = data.columns as [Float64Array, Float64Array];
+    const base = 2; // index of the first value column
     // A value that is not a number is a structural error: report the first one in file order.
     let first = -1;
-    if (badExpr.length > 0) {
-      const bad = data.columns[1]!;
-      for (let i = 0; i < data.rows; i++)
-        if (bad[i] !== 0 && (first < 0 || row[i]! < row[first]!)) first = i;
+    let anyFlag = false;
+    for (let i = 0; i < data.rows; i++) {
+      const f = flag[i]!;
+      if (f === 0) continue;
+      const badBits = f % 65536;
+      if (badBits !== 0 && (first < 0 || row[i]! < row[first]!)) first = i;
+      anyFlag = true;
     }
     if (first >= 0) {
-      const mask = data.columns[1]![first]!;
+      const mask = flag[first]! % 65536;
       const j = scanned.findIndex((_, k) => Math.floor(mask / 2 ** k) % 2 === 1);
       const name = names[scanned[j]!]!;
       const value = await rawValue(c, source, format, name, row[first]!);
@@ -109,8 +113,12 @@ export function scanTable(
     const empty: RawTable["empty"] = {};
     scanned.forEach((col, j) => {
       columns[col] = data.columns[base + j];
-      const nul = data.nulls[base + j];
-      if (nul) empty[col] = nul;
+      if (!anyFlag) return;
+      const bit = 2 ** (16 + j);
+      let mark: Uint8Array | undefined;
+      for (let i = 0; i < data.rows; i++)
+        if (Math.floor(flag[i]! / bit) % 2 === 1) (mark ??= new Uint8Array(data.rows))[i] = 1;
+      if (mark) empty[col] = mark;
     });
     let unrecognisedKinds: string[] = [];
     if (kindExpr) {
