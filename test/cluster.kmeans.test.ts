@@ -221,6 +221,10 @@ describe("kmeans with worker threads", () => {
     expect(Buffer.from(two.centroids.data.buffer).equals(Buffer.from(one.centroids.data.buffer))).toBe(true);
     expect(two.inertia).toBe(one.inertia);
     expect(two.iterations).toBe(one.iterations);
+    // The worker pool is kept between calls: a second call reuses it and gives the same bytes.
+    const again = kmeans(X, 12, { init, threads: 2 });
+    expect(Buffer.from(again.labels.buffer).equals(Buffer.from(one.labels.buffer))).toBe(true);
+    expect(again.inertia).toBe(one.inertia);
     const ref = referenceLloyd(X, init, one.iterations);
     expectSameLabels(one.labels, ref.labels);
   });
