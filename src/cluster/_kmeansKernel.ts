@@ -10,8 +10,8 @@
  *
  * Assignment with bounds follows Hamerly, "Making k-means even faster", SDM 2010: one upper bound on
  * the distance to the assigned centre and one lower bound on the distance to every other centre. The
- * first assignment and the full searches skip centres with the centre-to-centre triangle inequality
- * of Elkan, "Using the triangle inequality to accelerate k-means", ICML 2003 (Lemma 1:
+ * first assignment also uses lower bounds from a projection on the centres' principal directions; it
+ * and the full searches skip centres with the centre-to-centre triangle inequality of Elkan, "Using the triangle inequality to accelerate k-means", ICML 2003 (Lemma 1:
  * d(c_a, c_j) >= 2 d(x, c_a) implies d(x, c_j) >= d(x, c_a)).
  */
 export const KMEANS_KERNEL_SOURCE = String.raw`
@@ -29,7 +29,8 @@ function makeState(bufs, meta) {
     CC: view(Float64Array, bufs.CC), half: view(Float64Array, bufs.half), move: view(Float64Array, bufs.move),
     labels: view(Int32Array, bufs.labels), upper: view(Float64Array, bufs.upper), lower: view(Float64Array, bufs.lower),
     sums: view(Float64Array, bufs.sums), wsum: view(Float64Array, bufs.wsum), stats: view(Float64Array, bufs.stats),
-    scratch: new Float64Array(meta.k),
+    proj: view(Float64Array, bufs.proj), cproj: view(Float64Array, bufs.cproj), p: meta.p,
+    scratch: new Float64Array(meta.k), pd2: new Float64Array(meta.k), xp: new Float64Array(Math.max(1, meta.p)),
   };
 }
 
@@ -50,27 +51,47 @@ function addRow(sums, so, X, xo, d, w) {
 }
 
 // stats per chunk: [changed labels, distance evaluations, inertia, unused]
-// OP 0: first assignment with bounds, chunk sums from scratch.
+// OP 0: first assignment with bounds, chunk sums from scratch. Each row is first projected on p
+// orthonormal directions (proj, p × d; cproj = the centres' projections, k × p): the projected
+// distance is a lower bound on the true one (projection is 1-Lipschitz), so the row starts at the
+// centre nearest in projection and skips every centre whose projected distance already exceeds the
+// best true distance, or that Elkan's centre–centre test rules out.
 function opInit(S, ch0, ch1) {
-  var n = S.n, d = S.d, k = S.k, X = S.X, W = S.W, C = S.C, CC = S.CC;
+  var n = S.n, d = S.d, k = S.k, X = S.X, W = S.W, C = S.C, CC = S.CC, p = S.p, P = S.proj, CP = S.cproj;
   var labels = S.labels, upper = S.upper, lower = S.lower, sums = S.sums, wsum = S.wsum, lb = S.scratch;
+  var pd2 = S.pd2, xp = S.xp;
   for (var ch = ch0; ch < ch1; ch++) {
     var r0 = ch * S.chunk, r1 = Math.min(n, r0 + S.chunk), so = ch * k * d, wo = ch * k;
     sums.fill(0, so, so + k * d); wsum.fill(0, wo, wo + k);
     var nd = 0;
     for (var i = r0; i < r1; i++) {
       var xo = i * d;
-      var best = 0, bsq = dist2(X, xo, C, 0, d), bd = Math.sqrt(bsq);
+      for (var a = 0; a < p; a++) {
+        var po = a * d, s = 0;
+        for (var t = 0; t < d; t++) s += P[po + t] * X[xo + t];
+        xp[a] = s;
+      }
+      var first = 0, fmin = Infinity;
+      for (var j = 0; j < k; j++) {
+        var q2 = 0, co = j * p;
+        for (var a2 = 0; a2 < p; a2++) { var e = xp[a2] - CP[co + a2]; q2 += e * e; }
+        pd2[j] = q2;
+        if (q2 < fmin) { fmin = q2; first = j; }
+      }
+      var best = first, bsq = dist2(X, xo, C, first * d, d), bd = Math.sqrt(bsq);
       nd++;
-      lb[0] = bd;
-      for (var j = 1; j < k; j++) {
-        var cc = CC[best * k + j];
-        if (cc * (1 - SLACK) >= 2 * bd) { lb[j] = cc - bd; continue; }
-        var q = dist2(X, xo, C, j * d, d);
+      lb[first] = bd;
+      for (var j3 = 0; j3 < k; j3++) {
+        if (j3 === first) continue;
+        var pj = pd2[j3];
+        if (pj * (1 - SLACK) > bsq) { lb[j3] = Math.sqrt(pj) * (1 - SLACK); continue; }
+        var cc = CC[best * k + j3];
+        if (cc * (1 - SLACK) > 2 * bd) { lb[j3] = cc - bd; continue; }
+        var q = dist2(X, xo, C, j3 * d, d);
         nd++;
         var qd = Math.sqrt(q);
-        lb[j] = qd;
-        if (q < bsq) { best = j; bsq = q; bd = qd; }
+        lb[j3] = qd;
+        if (q < bsq || (q === bsq && j3 < best)) { best = j3; bsq = q; bd = qd; }
       }
       var l = Infinity;
       for (var j2 = 0; j2 < k; j2++) if (j2 !== best && lb[j2] < l) l = lb[j2];

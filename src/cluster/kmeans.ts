@@ -6,6 +6,7 @@ import { checkInt, checkMatrix, checkNumber, checkThreads, checkWeights } from "
 import { KMEANS_KERNEL_SOURCE, OP_HAMERLY, OP_INERTIA, OP_INIT, OP_LLOYD } from "./_kmeansKernel.js";
 import { Team, autoThreads, isShared, ref, sharedF64, sharedI32 } from "./_team.js";
 import { kmeansPlusPlus } from "./kmeansPlusPlus.js";
+import { symmetricEigen } from "../embed/_symEigen.js";
 
 export type KMeansAlgorithm = "hamerly" | "lloyd";
 
@@ -174,9 +175,11 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     sums: sharedF64(nChunks * k * d, shared),
     wsum: sharedF64(nChunks * k, shared),
     stats: sharedF64(nChunks * 4, shared),
+    proj: sharedF64(PROJ_DIMS * d, shared),
+    cproj: sharedF64(k * PROJ_DIMS, shared),
   };
   const refs = Object.fromEntries(Object.entries(bufs).map(([name, a]) => [name, ref(a)]));
-  const team = new Team(KMEANS_KERNEL_SOURCE, refs, { n, d, k, chunk, nChunks }, o.threads);
+  const team = new Team(KMEANS_KERNEL_SOURCE, refs, { n, d, k, chunk, nChunks, p: Math.min(PROJ_DIMS, d) }, o.threads);
   if (team.startupProblem) warnings.push(team.startupProblem);
 
   let best: Omit<KMeansResult, "nInit" | "tolAbsolute" | "threads" | "distanceEvaluations" | "warnings"> | null = null;
@@ -226,6 +229,8 @@ function copyShared(a: Float64Array): Float64Array {
 }
 
 interface Bufs {
+  proj: Float64Array;
+  cproj: Float64Array;
   X: Float64Array;
   W: Float64Array | null;
   C: Float64Array;
@@ -270,7 +275,10 @@ function runOnce(
     return changed;
   };
 
-  if (hamerly) centreGeometry(b, k, d);
+  if (hamerly) {
+    centreGeometry(b, k, d);
+    projectionBasis(b, k, d);
+  }
   if (!hamerly) b.labels.fill(-1);
   team.run(hamerly ? OP_INIT : OP_LLOYD, nChunks);
   let changed = collectStats();
@@ -346,6 +354,36 @@ function runOnce(
   for (let i = 0; i < n; i++) clusterWeights[labels[i]!]! += b.W === null ? 1 : b.W[i]!;
   for (let j = 0; j < k; j++) if (clusterWeights[j] === 0) warnings.push(`cluster ${j} is empty at the end`);
   return { inertia, iterations: iter, converged, clusterWeights, warnings, distanceEvaluations: nd };
+}
+
+/** Directions of the first-assignment projection bound (see _kmeansKernel.ts). */
+const PROJ_DIMS = 4;
+
+/**
+ * proj = the top min(4, d) principal directions of the initial centres (orthonormal rows), cproj =
+ * the centres projected on them. Any orthonormal directions give valid bounds; these spread the
+ * centres most, so the bounds prune most.
+ */
+function projectionBasis(b: Bufs, k: number, d: number): void {
+  const p = Math.min(PROJ_DIMS, d);
+  const C = b.C;
+  const mean = new Float64Array(d);
+  for (let j = 0; j < k; j++) for (let t = 0; t < d; t++) mean[t]! += C[j * d + t]! / k;
+  const cov = new Float64Array(d * d);
+  for (let j = 0; j < k; j++)
+    for (let a = 0; a < d; a++) {
+      const u = C[j * d + a]! - mean[a]!;
+      for (let c = a; c < d; c++) cov[a * d + c]! += u * (C[j * d + c]! - mean[c]!);
+    }
+  for (let a = 0; a < d; a++) for (let c = a + 1; c < d; c++) cov[c * d + a] = cov[a * d + c]!;
+  const { vectors } = symmetricEigen(cov, d);
+  b.proj.set(vectors.subarray(0, p * d));
+  for (let j = 0; j < k; j++)
+    for (let a = 0; a < p; a++) {
+      let s = 0;
+      for (let t = 0; t < d; t++) s += b.proj[a * d + t]! * C[j * d + t]!;
+      b.cproj[j * p + a] = s;
+    }
 }
 
 /** move[k..k+2] = largest move, second largest, index of the largest (Hamerly's bound update). */
