@@ -2,8 +2,8 @@ import { beforeAll, describe, expect, it } from "vitest";
 import { InputError } from "../src/core/errors.js";
 import { Rng } from "../src/core/rng.js";
 import { LON_ACCELERATE, LON_DECELERATE, LON_KEEP } from "../src/maneuvers/labels.js";
-import { generateTraffic, type GeneratedTraffic } from "../src/synth/generateTraffic.js";
-import { labelLongitudinalTruth, type LongitudinalDefinition } from "../src/synth/labelLongitudinalTruth.js";
+import { generateTraffic, round3, type GeneratedTraffic } from "../src/synth/generateTraffic.js";
+import { centredMeanAcceleration, labelLongitudinalTruth, type LongitudinalDefinition } from "../src/synth/labelLongitudinalTruth.js";
 import { resolveTrafficOptions } from "../src/synth/options.js";
 import { decodeRuns, encodeRuns, truthFromJson, truthToJson } from "../src/synth/truthFile.js";
 
@@ -237,64 +237,167 @@ describe("generateTraffic sanity", () => {
   });
 });
 
+// Sources: the documented truth definition (docs/synth.md, "Ground truth definitions"), worked by hand;
+// kinematics of the ballistic update v[k+1] = v[k] + a[k]·dt (the mean acceleration over a window is
+// the speed change over it divided by its length); Rice (1944) for the fewer level crossings of a
+// low-pass filtered signal.
 describe("labelLongitudinalTruth", () => {
   const def: LongitudinalDefinition = { enter: 0.25, exit: 0.15, minDuration: 1 };
+  const rep = (v: number, n: number) => Array<number>(n).fill(v);
 
-  it("follows the documented definition on a worked example (10 Hz, runs shorter than 1 s)", () => {
-    const rep = (v: number, n: number) => Array<number>(n).fill(v);
+  it("follows the documented definition on a worked example (instantaneous values, 10 Hz, runs shorter than 1 s)", () => {
     const a = [...rep(0, 5), ...rep(0.3, 12), ...rep(0.2, 3), ...rep(0.1, 4), ...rep(0.3, 12), ...rep(0, 5), ...rep(-0.3, 5), ...rep(0, 5)];
     // Hysteresis: 0.2 >= exit keeps "accelerate"; 0.1 < exit drops to keep for 4 frames (< 10 frames,
     // between two accelerate runs ⇒ filled); the 5-frame decelerate run is too short ⇒ keep.
     const expected = [...rep(LON_KEEP, 5), ...rep(LON_ACCELERATE, 31), ...rep(LON_KEEP, 15)];
     expect(Array.from(labelLongitudinalTruth(a, 10, def))).toEqual(expected);
+    expect(Array.from(labelLongitudinalTruth(a, 10, { ...def, averageWindow: 0 }))).toEqual(expected);
     expect(Array.from(labelLongitudinalTruth([...rep(-0.3, 10), ...rep(-0.2, 2), ...rep(0, 3)], 10, def))).toEqual([
       ...rep(LON_DECELERATE, 12),
       ...rep(LON_KEEP, 3),
     ]);
   });
 
-  it("agrees with a slow reference implementation on every generated track", () => {
-    // Reference: the same three documented steps written with explicit segment objects.
-    const reference = (ax: ArrayLike<number>, fr: number): number[] => {
-      const raw: number[] = [];
-      let s = LON_KEEP;
-      for (let i = 0; i < ax.length; i++) {
-        const v = ax[i]!;
-        if (v >= def.enter) s = LON_ACCELERATE;
-        else if (v <= -def.enter) s = LON_DECELERATE;
-        else if ((s === LON_ACCELERATE && v < def.exit) || (s === LON_DECELERATE && v > -def.exit)) s = LON_KEEP;
-        raw.push(s);
+  it("centredMeanAcceleration: mean over the samples within ±window/2, clipped at the ends (worked by hand)", () => {
+    // 10 Hz, 1 s window ⇒ 5 samples each side. A single 0.6 m/s² sample at index 0: indices 0..5 see it
+    // in windows of 6, 7, …, 11 samples (clipped at the start); from index 6 on it is out of the window.
+    const m = centredMeanAcceleration([0.6, ...rep(0, 11)], 10, 1);
+    const expected = [0.6 / 6, 0.6 / 7, 0.6 / 8, 0.6 / 9, 0.6 / 10, 0.6 / 11, ...rep(0, 6)];
+    expected.forEach((v, i) => expect(m[i]!).toBeCloseTo(v, 12));
+    // 25 Hz, 1 s ⇒ 12 samples each side (25 in all): a constant is returned unchanged, a ramp too (inside).
+    const ramp = Array.from({ length: 60 }, (_, i) => round3(0.01 * i));
+    const r = centredMeanAcceleration(ramp, 25, 1);
+    for (let i = 12; i < 48; i++) expect(r[i]!).toBeCloseTo(ramp[i]!, 12);
+    expect(Array.from(centredMeanAcceleration(rep(-0.3, 40), 25, 1))).toEqual(rep(-0.3, 40));
+  });
+
+  it("an abrupt braking step is labelled over the one-second windows that contain it (worked by hand)", () => {
+    // 10 Hz: 3 s at 0, 2 s at −6 m/s² (frames 30..49), 3 s at 0. The mean over ±5 frames reaches
+    // −6/11 = −0.55 m/s² as soon as one braking frame is inside: frames 25..54 ⇒ decelerate, 0.5 s
+    // either side of the step (the ±window/2 resolution stated in docs/synth.md).
+    const a = [...rep(0, 30), ...rep(-6, 20), ...rep(0, 30)];
+    const expected = [...rep(LON_KEEP, 25), ...rep(LON_DECELERATE, 30), ...rep(LON_KEEP, 25)];
+    expect(Array.from(labelLongitudinalTruth(a, 10, { ...def, averageWindow: 1 }))).toEqual(expected);
+    // Instantaneous: exactly the braking frames.
+    expect(Array.from(labelLongitudinalTruth(a, 10, def))).toEqual([...rep(LON_KEEP, 30), ...rep(LON_DECELERATE, 20), ...rep(LON_KEEP, 30)]);
+  });
+
+  it("the one-second mean acceleration of a generated track is its speed change over that second", () => {
+    // Ballistic update (docs/synth.md, Integration): v[k+1] = v[k] + a[k]·dt, so the mean of a[i−12..i+12]
+    // equals (v[i+13] − v[i−12]) / (25·dt). Both columns are rounded to 1e-3 (speed error ≤ 1e-3/1 s,
+    // acceleration mean ≤ 5e-4), hence the 2e-3 tolerance. Windows that touch a standstill are left out:
+    // in the step where a vehicle comes to rest the speed stops falling part-way through the step.
+    const fr = g.options.frameRate;
+    const dt = 1 / fr;
+    let checked = 0;
+    let worst = 0;
+    for (const tr of g.recording.tracks) {
+      const m = centredMeanAcceleration(tr.ax, fr, 1);
+      for (let i = 12; i + 13 < tr.t.length; i++) {
+        if (tr.vx.subarray(i - 12, i + 14).includes(0)) continue;
+        const dv = (tr.vx[i + 13]! - tr.vx[i - 12]!) / (25 * dt);
+        worst = Math.max(worst, Math.abs(m[i]! - dv));
+        checked++;
       }
-      const minF = Math.round(def.minDuration * fr);
-      const segs = (codes: number[]) => {
-        const out: { code: number; from: number; to: number }[] = [];
-        codes.forEach((c, i) => {
-          const last = out[out.length - 1];
-          if (last && last.code === c) last.to = i + 1;
-          else out.push({ code: c, from: i, to: i + 1 });
-        });
-        return out;
-      };
-      const step2 = raw.slice();
-      for (const sg of segs(raw)) if (sg.code !== LON_KEEP && sg.to - sg.from < minF) for (let i = sg.from; i < sg.to; i++) step2[i] = LON_KEEP;
-      const s2 = segs(step2);
-      const out = step2.slice();
-      for (let j = 1; j < s2.length - 1; j++) {
-        const sg = s2[j]!;
-        if (sg.code === LON_KEEP && sg.to - sg.from < minF && s2[j - 1]!.code === s2[j + 1]!.code)
-          for (let i = sg.from; i < sg.to; i++) out[i] = s2[j - 1]!.code;
+    }
+    expect(checked).toBeGreaterThan(100000);
+    expect(worst).toBeLessThan(2e-3);
+  });
+
+  /** Reference: the documented steps written out with explicit windows and segment objects. */
+  const reference = (ax: ArrayLike<number>, t: ArrayLike<number>, fr: number, window: number): number[] => {
+    const a: number[] = [];
+    for (let i = 0; i < ax.length; i++) {
+      if (window <= 0) {
+        a.push(ax[i]!);
+        continue;
       }
+      let sum = 0;
+      let count = 0;
+      for (let k = 0; k < ax.length; k++) {
+        if (Math.abs(t[k]! - t[i]!) <= window / 2 + 1e-6) {
+          sum += Math.round(ax[k]! * 1000);
+          count++;
+        }
+      }
+      a.push(sum / (1000 * count));
+    }
+    const raw: number[] = [];
+    let s = LON_KEEP;
+    for (const v of a) {
+      if (v >= def.enter) s = LON_ACCELERATE;
+      else if (v <= -def.enter) s = LON_DECELERATE;
+      else if ((s === LON_ACCELERATE && v < def.exit) || (s === LON_DECELERATE && v > -def.exit)) s = LON_KEEP;
+      raw.push(s);
+    }
+    const minF = Math.round(def.minDuration * fr);
+    const segs = (codes: number[]) => {
+      const out: { code: number; from: number; to: number }[] = [];
+      codes.forEach((c, i) => {
+        const last = out[out.length - 1];
+        if (last && last.code === c) last.to = i + 1;
+        else out.push({ code: c, from: i, to: i + 1 });
+      });
       return out;
     };
+    const step2 = raw.slice();
+    for (const sg of segs(raw)) if (sg.code !== LON_KEEP && sg.to - sg.from < minF) for (let i = sg.from; i < sg.to; i++) step2[i] = LON_KEEP;
+    const s2 = segs(step2);
+    const out = step2.slice();
+    for (let j = 1; j < s2.length - 1; j++) {
+      const sg = s2[j]!;
+      if (sg.code === LON_KEEP && sg.to - sg.from < minF && s2[j - 1]!.code === s2[j + 1]!.code)
+        for (let i = sg.from; i < sg.to; i++) out[i] = s2[j - 1]!.code;
+    }
+    return out;
+  };
+  const phases = (codes: ArrayLike<number>): number => {
+    let n = 0;
+    for (let i = 0; i < codes.length; i++) if (i === 0 || codes[i] !== codes[i - 1]) n++;
+    return n;
+  };
+
+  it("the generator's truth (1 s mean) agrees with a slow reference implementation on every track", () => {
     let active = 0;
     g.recording.tracks.forEach((tr, i) => {
-      const ref = reference(tr.ax, g.options.frameRate);
+      const ref = reference(tr.ax, tr.t, g.options.frameRate, 1);
       expect(Array.from(g.truth.tracks[i]!.longitudinal)).toEqual(ref);
       active += ref.filter((c) => c !== LON_KEEP).length;
     });
     expect(active).toBeGreaterThan(1000);
+    // The fast path on all tracks against the reference on the instantaneous values (lonAverageWindow 0).
+    g.recording.tracks.forEach((tr) => {
+      const inst = labelLongitudinalTruth(tr.ax, g.options.frameRate, { ...def, averageWindow: 0 });
+      expect(Array.from(inst)).toEqual(reference(tr.ax, tr.t, g.options.frameRate, 0));
+    });
     expect(g.truth.definitions.lonEnterThreshold).toBe(0.25);
     expect(g.truth.definitions.lonMinDuration).toBe(1);
+    expect(g.truth.definitions.lonAverageWindow).toBe(1);
+  });
+
+  it("averaging removes sub-second wobble: fewer phases than labels from instantaneous values (Rice 1944)", () => {
+    let averaged = 0;
+    let instantaneous = 0;
+    g.recording.tracks.forEach((tr, i) => {
+      averaged += phases(g.truth.tracks[i]!.longitudinal);
+      instantaneous += phases(labelLongitudinalTruth(tr.ax, g.options.frameRate, def));
+    });
+    expect(averaged).toBeLessThan(instantaneous);
+  });
+
+  it("lonAverageWindow: 0 gives the instantaneous definition and leaves the motion unchanged", () => {
+    const opts = { vehicleKm: 4, positionNoiseSd: 0.1 };
+    const avg = generateTraffic(opts, new Rng(3));
+    const inst = generateTraffic({ ...opts, lonAverageWindow: 0 }, new Rng(3));
+    expect(inst.truth.definitions.lonAverageWindow).toBe(0);
+    expect(inst.recording.tracks.length).toBe(avg.recording.tracks.length);
+    inst.recording.tracks.forEach((tr, i) => {
+      const other = avg.recording.tracks[i]!;
+      expect(tr.x).toEqual(other.x);
+      expect(tr.ax).toEqual(other.ax);
+      expect(Array.from(inst.truth.tracks[i]!.longitudinal)).toEqual(reference(tr.ax, tr.t, inst.options.frameRate, 0));
+    });
+    expect(() => resolveTrafficOptions({ lonAverageWindow: -1 })).toThrow(/lonAverageWindow=-1 should be in \[0, 10\] s/);
   });
 });
 

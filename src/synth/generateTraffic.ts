@@ -208,6 +208,7 @@ function assemble(
       enter: o.lonEnterThreshold,
       exit: o.lonExitThreshold,
       minDuration: o.lonMinDuration,
+      averageWindow: o.lonAverageWindow,
     });
     truthTracks.push({ trackId: u.trackId, longitudinal, lateral });
   }
@@ -289,6 +290,7 @@ export function truthDefinitions(o: TrafficOptions): Record<string, number> {
     lonEnterThreshold: o.lonEnterThreshold,
     lonExitThreshold: o.lonExitThreshold,
     lonMinDuration: o.lonMinDuration,
+    lonAverageWindow: o.lonAverageWindow,
     laneChangeDurationMean: o.laneChangeDurationMean,
     laneChangeDurationSd: o.laneChangeDurationSd,
     hardBrakingRate: o.hardBrakingRate,

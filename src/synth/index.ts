@@ -12,6 +12,6 @@ export type { IdmParams } from "./idm.js";
 export { mobilIncentive, mobilIsSafe } from "./mobil.js";
 export type { MobilAccelerations, MobilParams, LaneChangeDirection } from "./mobil.js";
 export { quinticShape, sampleLaneChangeDuration } from "./lateral.js";
-export { labelLongitudinalTruth } from "./labelLongitudinalTruth.js";
+export { centredMeanAcceleration, labelLongitudinalTruth } from "./labelLongitudinalTruth.js";
 export type { LongitudinalDefinition } from "./labelLongitudinalTruth.js";
 export type { GroundTruth, TrackTruth, TruthLaneChange, TruthCutIn, PlantedEvent } from "./types.js";

@@ -125,6 +125,8 @@ export interface TrafficOptions {
   lonExitThreshold: number;
   /** Accelerate/decelerate runs shorter than this become keep; shorter keep runs between equal runs are filled (s). */
   lonMinDuration: number;
+  /** Longitudinal label: the clean acceleration is averaged over a centred window of this length first (s); 0 = instantaneous values. */
+  lonAverageWindow: number;
 
   // --- output ------------------------------------------------------------------------------------
   /** Gaussian noise added to the written x and y positions only (m); 0 = none. */
@@ -196,6 +198,7 @@ export const DEFAULT_TRAFFIC_OPTIONS: Readonly<TrafficOptions> = Object.freeze({
   lonEnterThreshold: 0.25,
   lonExitThreshold: 0.15,
   lonMinDuration: 1,
+  lonAverageWindow: 1,
   positionNoiseSd: 0,
   writeVelocities: true,
 });
@@ -266,6 +269,7 @@ const NUMERIC_CHECKS: Check[] = [
   ["lonEnterThreshold", gt0, "> 0 m/s²"],
   ["lonExitThreshold", ge0, ">= 0 m/s²"],
   ["lonMinDuration", ge0, ">= 0 s"],
+  ["lonAverageWindow", (v) => v >= 0 && v <= 10, "in [0, 10] s (0 = instantaneous)"],
   ["positionNoiseSd", (v) => v >= 0 && v <= 5, "in [0, 5] m"],
 ];
 
