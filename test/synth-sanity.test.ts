@@ -136,6 +136,19 @@ describe("generateTraffic sanity", () => {
     }
   });
 
+  it("a vehicle at a standstill has no negative acceleration (ax describes the motion, not the brake command)", () => {
+    // Kinematics: speed cannot fall below zero, so where it is zero in two consecutive frames the
+    // acceleration of the motion is not negative. Planted hard braking stops some vehicles in this run.
+    let standing = 0;
+    for (const tr of g.recording.tracks)
+      for (let k = 0; k + 1 < tr.t.length; k++)
+        if (tr.vx[k] === 0 && tr.vx[k + 1] === 0) {
+          standing++;
+          expect(tr.ax[k]!).toBeGreaterThanOrEqual(0);
+        }
+    expect(standing).toBeGreaterThan(0);
+  });
+
   it("planted events are what they claim: hard braking at the stated deceleration, tight cut-ins with small gaps", () => {
     const byId = new Map(g.recording.tracks.map((t) => [t.id, t]));
     for (const p of g.truth.planted) {

@@ -575,7 +575,9 @@ export class Simulator {
       rec.y.push(u.y);
       rec.v.push(u.v);
       rec.vy.push(u.vy);
-      rec.a.push(u.a);
+      // A vehicle at a standstill does not accelerate, whatever braking is commanded (the brakes hold
+      // it; the ballistic update keeps it in place): record the acceleration of the motion.
+      rec.a.push(u.v === 0 && u.a < 0 ? 0 : u.a);
       rec.ay.push(u.ay);
       rec.lane.push(u.lane);
       this.observedMeters += u.v * frameS;
