@@ -36,7 +36,7 @@ export function sqlIdent(s: string): string {
  * know, select a separate flags column saying which cells were NULL.
  *
  * Fast path: node-api's DOUBLE vector keeps its values in a Float64Array view of DuckDB's buffer
- * (`items`, not part of the typed API); when that view is there it is copied with one `slice` per
+ * (`items`, not part of the typed API); when that view is there it is copied with one `set` per
  * chunk and column. Otherwise — a different node-api version — the public `getItem` is used. Both
  * give the same numbers (tested).
  */
@@ -48,41 +48,42 @@ export async function fetchDoubles(
   const fast = options.fastPath ?? true;
   const res = await c.stream(sql);
   const ncol = res.columnCount;
-  const parts: Float64Array[][] = Array.from({ length: ncol }, () => []);
+  let capacity = 1 << 16;
+  let columns = Array.from({ length: ncol }, () => new Float64Array(capacity));
   let rows = 0;
   for (;;) {
     const chunk = await res.fetchChunk();
     if (!chunk || chunk.rowCount === 0) break;
     const m = chunk.rowCount;
+    if (rows + m > capacity) {
+      // Grow by doubling: amortized one extra copy per value.
+      while (rows + m > capacity) capacity *= 2;
+      columns = columns.map((old) => {
+        const grown = new Float64Array(capacity);
+        grown.set(old.subarray(0, rows));
+        return grown;
+      });
+    }
     for (let j = 0; j < ncol; j++) {
       const v = chunk.getColumnVector(j);
+      const out = columns[j]!;
       const items = fast ? (v as unknown as { items?: unknown }).items : undefined;
-      let out: Float64Array;
-      if (items instanceof Float64Array && items.length === m) out = items.slice();
-      else {
-        out = new Float64Array(m);
-        for (let i = 0; i < m; i++) {
-          const item = v.getItem(i);
-          if (typeof item !== "number")
-            throw new TypeError(`internal: column ${j} of "${sql.slice(0, 80)}…" should be DOUBLE and never NULL, got ${String(item)}`);
-          out[i] = item;
-        }
+      if (items instanceof Float64Array && items.length === m) {
+        out.set(items, rows);
+        continue;
       }
-      parts[j]!.push(out);
+      for (let i = 0; i < m; i++) {
+        const item = v.getItem(i);
+        if (typeof item !== "number")
+          throw new TypeError(`internal: column ${j} of "${sql.slice(0, 80)}…" should be DOUBLE and never NULL, got ${String(item)}`);
+        out[rows + i] = item;
+      }
     }
     rows += m;
   }
-  const columns = parts.map((list) => {
-    if (list.length === 1) return list[0]!;
-    const col = new Float64Array(rows);
-    let off = 0;
-    for (const p of list) {
-      col.set(p, off);
-      off += p.length;
-    }
-    return col;
-  });
-  return { rows, columns };
+  // Views on the rows read (no copy; the spare capacity is freed with the columns, which callers only
+  // keep while building tracks).
+  return { rows, columns: columns.map((col) => col.subarray(0, rows)) };
 }
 
 /** Run a query and return its rows as plain JSON-like objects (for small results only). */
