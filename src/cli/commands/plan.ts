@@ -29,6 +29,7 @@ export const PIPELINE_CLI_OPTIONS = {
   "no-dbscan": { type: "boolean", default: false },
   "no-catalogue": { type: "boolean", default: false },
   parquet: { type: "boolean", default: false },
+  openscenario: { type: "boolean", default: false },
   quiet: { type: "boolean", default: false },
 } as const;
 
@@ -47,6 +48,7 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
   --no-dbscan          no DBSCAN: rare scenarios come from type keys seen once only
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
+  --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
   --quiet              no progress display`;
 
 type PipelineCliValues = { [K in keyof typeof PIPELINE_CLI_OPTIONS]?: (typeof PIPELINE_CLI_OPTIONS)[K]["type"] extends "boolean" ? boolean : string };
@@ -95,14 +97,20 @@ export async function planFromFiles(files: string[], readOptions: ReadRecordingO
     for (const f of files) recordings.push(await readRecording(f, { ...readOptions, progress }));
     for (const r of recordings) for (const rj of r.rejected) process.stderr.write(`\nrejected: ${r.source}: track ${rj.trackId}${rj.row !== undefined ? ` (row ${rj.row})` : ""}: ${rj.reason}\n`);
     const result = runPipeline(recordings, options, progress);
-    const written = await writeOutputs(result, out, { catalogue: !v["no-catalogue"], parquet: Boolean(v.parquet), progress });
+    const written = await writeOutputs(result, out, {
+      catalogue: !v["no-catalogue"],
+      parquet: Boolean(v.parquet),
+      openScenario: v.openscenario ? recordings : undefined,
+      progress,
+    });
     display.done();
     process.stdout.write(`${planSummary(result.plan)}\n\n`);
     const t = Object.entries(result.timings)
       .map(([k, s]) => `${k} ${s.toFixed(2)} s`)
       .join(", ");
     process.stdout.write(`timings: ${t}\n`);
-    for (const w of written) process.stdout.write(`wrote ${w}\n`);
+    for (const w of written.files) process.stdout.write(`wrote ${w}\n`);
+    for (const w of written.warnings) process.stderr.write(`warning: ${w}\n`);
     return 0;
   } finally {
     display.done();
