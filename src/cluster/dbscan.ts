@@ -11,7 +11,7 @@ export interface DbscanOptions {
   minPts?: number;
   /** Optional non-negative weights: a row is core when the weights within eps sum to >= minPts. */
   weights?: Float64Array;
-  /** Rows per kd-tree leaf. Default 16. */
+  /** Rows per kd-tree leaf. Default 16 for d <= 4, 64 for d <= 12, else 128. */
   leafSize?: number;
   progress?: Progress;
 }
@@ -49,7 +49,9 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
   const eps = checkNumber("eps", options.eps, 0, false);
   const minPts = checkNumber("minPts", options.minPts ?? 5, 1);
   const W = checkWeights(options.weights, X.rows);
-  const leafSize = options.leafSize ?? 16;
+  // Larger leaves in higher dimension: box tests cost O(d) per node and prune less (measured on blobs:
+  // 16 best at d = 3, 64 at d = 8, 128 at d = 32).
+  const leafSize = options.leafSize ?? (X.cols <= 4 ? 16 : X.cols <= 12 ? 64 : 128);
   const n = X.rows;
   const d = X.cols;
   const r2 = eps * eps;
