@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import type { Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
@@ -82,7 +83,14 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
     timings[name] = (timings[name] ?? 0) + (performance.now() - t0) / 1000;
     return r;
   };
-  if (recordings.length === 0) throw new RangeError("runPipeline needs at least one recording");
+  if (recordings.length === 0) throw new InputError("runPipeline needs at least one recording");
+  const seen = new Map<string, string>();
+  for (const rec of recordings) {
+    const other = seen.get(rec.id);
+    if (other !== undefined)
+      throw new InputError(`two recordings have the id "${rec.id}" (${other} and ${rec.source}); scenario ids would collide — give each its own id (readRecording option id)`);
+    seen.set(rec.id, rec.source);
+  }
 
   const sets: ScenarioSet[] = [];
   const maneuvers: TrackManeuvers[][] = [];
@@ -122,7 +130,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
   }
   const scenarios = mergeScenarioSets(sets);
   const n = scenarios.scenarios.length;
-  if (n < 3) throw new RangeError(`the recordings gave ${n} scenario(s); clustering needs at least 3`);
+  if (n < 3) throw new InputError(`the recordings gave ${n} scenario(s); clustering needs at least 3`);
 
   const embedding = timed("embedding", () => embedScenarios(scenarios, o.embedding));
   const X = embedding.matrix;
@@ -137,7 +145,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
     k = sweep.suggestedK;
     warnings.push(...sweep.warnings);
   }
-  if (k > n) throw new RangeError(`k=${k} should be <= the number of scenarios (${n})`);
+  if (k > n) throw new InputError(`k=${k} should be <= the number of scenarios (${n})`);
   const km = timed("k-means", () => kmeans(X, k, { rng: rng.fork("kmeans"), nInit: o.nInit, weights, progress }));
   warnings.push(...km.warnings);
 

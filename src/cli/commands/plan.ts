@@ -30,6 +30,8 @@ export const PIPELINE_CLI_OPTIONS = {
   "no-catalogue": { type: "boolean", default: false },
   parquet: { type: "boolean", default: false },
   openscenario: { type: "boolean", default: false },
+  critical: { type: "string" },
+  rare: { type: "string" },
   quiet: { type: "boolean", default: false },
 } as const;
 
@@ -46,6 +48,10 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
   --eps E              DBSCAN radius                                  (default: knee of the k-distance curve)
   --min-pts N          DBSCAN minPts                                  (default: 2 × dimensions)
   --no-dbscan          no DBSCAN: rare scenarios come from type keys seen once only
+  --critical P         each | per-type: every critical scenario its own test case, or the most
+                       critical one per cluster and type key standing for the others (default: each)
+  --rare R             noise+types | noise | types | none: which rare scenarios are kept on their
+                       own: DBSCAN noise, type keys seen once                  (default: noise+types)
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
   --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
@@ -73,6 +79,13 @@ export function pipelineOptions(v: PipelineCliValues): PipelineOptions {
     const m = /^(\d+(?:\.\d+)?)\.\.(\d+(?:\.\d+)?)$/.exec(ev.trim());
     if (!m || !(Number(m[1]) > 0) || Number(m[2]) < Number(m[1])) throw new UsageError(`--event-windows=${JSON.stringify(ev)} should look like 4..20 (seconds, min..max)`);
     o.scenario = { window: { mode: "events", minSeconds: Number(m[1]), maxSeconds: Number(m[2]) } };
+  }
+  const critical = choiceOption("critical", v.critical, ["each", "per-type"] as const);
+  if (critical) o.plan!.criticalPolicy = critical === "each" ? "each" : "most-critical-per-type";
+  const rare = choiceOption("rare", v.rare, ["noise+types", "noise", "types", "none"] as const);
+  if (rare) {
+    o.plan!.includeNoise = rare === "noise+types" || rare === "noise";
+    o.plan!.includeSingletonTypes = rare === "noise+types" || rare === "types";
   }
   o.map = choiceOption("map", v.map, ["umap", "pca"] as const);
   const weight = choiceOption("weight", v.weight, ["km", "hours"] as const);
