@@ -7,7 +7,11 @@
  * Generates traffic on the fictional Orrowind Motorway with position noise (default 0.1 m), keeps the
  * noisy positions only (velocity, acceleration and lane columns are re-derived through kinematics/, as
  * the reader does for a file without them), detects maneuvers and scenes, and compares with the truth:
- * - lateralFrameAccuracy / longitudinalFrameAccuracy: share of samples with the true label;
+ * - lateralFrameAccuracy / longitudinalFrameAccuracy: share of samples with the true label (the
+ *   longitudinal truth labels the one-second mean of the clean acceleration, docs/synth.md);
+ * - longitudinalFrameAccuracyInstantaneous: the same against labels of the instantaneous clean
+ *   acceleration (the generator's previous definition, lonAverageWindow 0), for comparison; for
+ *   --sample the clean accelerations come from regenerating the sample in memory;
  * - laneChangePrecision / laneChangeRecall: one-to-one matches of lane-change segments with true lane
  *   changes (same track and direction, crossings within 1 s); true lane changes whose crossing lies
  *   outside the recorded span cannot be observed and are left out of both;
@@ -21,7 +25,9 @@ import { fileURLToPath } from "node:url";
 import { Rng } from "../src/core/rng.js";
 import { readRecording } from "../src/recording/readRecording.js";
 import { readGroundTruth } from "../src/synth/truthFile.js";
-import { generateTraffic } from "../src/synth/generateTraffic.js";
+import { generateTraffic, type GeneratedTraffic } from "../src/synth/generateTraffic.js";
+import { labelLongitudinalTruth } from "../src/synth/labelLongitudinalTruth.js";
+import { SAMPLE_DATA_OPTIONS } from "../src/synth/sampleData.js";
 import { deriveMotion } from "../src/kinematics/deriveMotion.js";
 import { assignLanes } from "../src/kinematics/assignLanes.js";
 import { detectAllManeuvers } from "../src/maneuvers/detectAllManeuvers.js";
@@ -64,6 +70,32 @@ export interface ManeuverScores {
   laneChangesDetected: number;
   cutInsTrue: number;
   cutInsDetected: number;
+}
+
+/** Share of samples whose detected longitudinal label equals `labels` (keyed by track id). */
+export function longitudinalAccuracy(rec: Recording, man: TrackManeuvers[], labels: Map<number, Int8Array>): number {
+  let ok = 0;
+  let frames = 0;
+  rec.tracks.forEach((tr, k) => {
+    const ref = labels.get(tr.id);
+    if (!ref) throw new Error(`no reference labels for track ${tr.id}`);
+    const m = man[k]!;
+    for (let i = 0; i < ref.length; i++) if (m.longitudinal[i] === ref[i]) ok++;
+    frames += ref.length;
+  });
+  return ok / frames;
+}
+
+/**
+ * Longitudinal labels from the instantaneous clean acceleration (lonAverageWindow 0) with the
+ * thresholds of the truth's definitions.
+ */
+function instantaneousLabels(clean: GeneratedTraffic): Map<number, Int8Array> {
+  const o = clean.options;
+  const out = new Map<number, Int8Array>();
+  for (const tr of clean.recording.tracks)
+    out.set(tr.id, labelLongitudinalTruth(tr.ax, o.frameRate, { enter: o.lonEnterThreshold, exit: o.lonExitThreshold, minDuration: o.lonMinDuration, averageWindow: 0 }));
+  return out;
 }
 
 function median(v: number[]): number {
@@ -150,12 +182,22 @@ export async function run(args: string[]): Promise<void> {
   let label: string;
   let rec: Recording;
   let truth: GroundTruth;
+  let clean: GeneratedTraffic;
   if (args.includes("--sample")) {
     // The bundled sample has positions only (no velocity columns): the reader derives the rest.
     const dir = join(dirname(fileURLToPath(import.meta.url)), "..", "sample-data", "orrowind");
     rec = await readRecording(join(dir, "tracks.parquet"));
     truth = await readGroundTruth(join(dir, "truth.json"));
     label = `sample-data/orrowind: read in ${((performance.now() - t0) / 1000).toFixed(2)} s`;
+    // Clean accelerations for the instantaneous comparison: regenerate the sample in memory and make
+    // sure it is the same run as the files (same tracks, same truth labels).
+    clean = generateTraffic({ ...SAMPLE_DATA_OPTIONS.traffic }, new Rng(SAMPLE_DATA_OPTIONS.seed));
+    const fileTruth = new Map(truth.tracks.map((t) => [t.trackId, t.longitudinal]));
+    for (const t of clean.truth.tracks) {
+      const f = fileTruth.get(t.trackId);
+      if (!f || f.length !== t.longitudinal.length || f.some((c, i) => c !== t.longitudinal[i]))
+        throw new Error(`regenerated sample differs from sample-data/orrowind/truth.json at track ${t.trackId}: regenerate the sample`);
+    }
   } else {
     const gen = generateTraffic(
       { recordingId: `bench-${seed}`, vehicleKm: km, flowPerLane: 800, positionNoiseSd: noise, writeVelocities: false, hardBrakingRate: 0.04, tightCutInRate: 0.04 },
@@ -164,6 +206,7 @@ export async function run(args: string[]): Promise<void> {
     label = `seed ${seed}: generated in ${((performance.now() - t0) / 1000).toFixed(2)} s, noise ${noise} m`;
     rec = positionsOnly(gen.recording);
     truth = gen.truth;
+    clean = gen;
   }
   const rows = rec.tracks.reduce((s, tr) => s + tr.t.length, 0);
   const vehicleKm = rec.tracks.reduce((s, tr) => s + (tr.t.length > 1 ? tr.x[tr.x.length - 1]! - tr.x[0]! : 0), 0) / 1000;
@@ -185,6 +228,7 @@ export async function run(args: string[]): Promise<void> {
   const emb = embedScenarios(set);
   const tEmb = performance.now() - t0;
   const s = scoreManeuvers(rec, truth, man, scenes);
+  const lonInstantaneous = longitudinalAccuracy(rec, man, instantaneousLabels(clean));
   console.log(
     `${label}; ${vehicleKm.toFixed(1)} vehicle-km, ${rows} rows, ${rec.tracks.length} tracks; ` +
       `maneuvers ${(tMan / 1000).toFixed(2)} s, scenes ${(tScene / 1000).toFixed(2)} s, ` +
@@ -202,6 +246,8 @@ export async function run(args: string[]): Promise<void> {
       laneChangeRecall: round(s.laneChangeRecall),
       boundaryErrorMedianS: round(s.boundaryErrorMedianS),
       longitudinalFrameAccuracy: round(s.longitudinalFrameAccuracy),
+      longitudinalFrameAccuracyInstantaneous: round(lonInstantaneous),
+      lonAverageWindowS: d.lonAverageWindow,
       cutInPrecision: round(s.cutInPrecision),
       cutInRecall: round(s.cutInRecall),
       maneuversSeconds: round(tMan / 1000),

@@ -241,7 +241,9 @@ describe("detectAllManeuvers on generated traffic (lower bar on small data)", ()
     expect(s.laneChangePrecision).toBeGreaterThan(0.9);
     expect(s.laneChangeRecall).toBeGreaterThan(0.9);
     expect(s.boundaryErrorMedianS).toBeLessThan(0.3);
-    expect(s.longitudinalFrameAccuracy).toBeGreaterThan(0.88);
+    // Longitudinal truth: the generator's labels of the one-second mean clean acceleration
+    // (docs/synth.md, "Ground truth definitions"); this run measured 0.972 when the bar was set.
+    expect(s.longitudinalFrameAccuracy).toBeGreaterThan(0.93);
     expect(s.cutInPrecision).toBeGreaterThan(0.85);
     expect(s.cutInRecall).toBeGreaterThan(0.85);
   });
