@@ -5,6 +5,7 @@ import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
 import { queryCatalogue } from "../src/catalogue/queryCatalogue.js";
 import { Rng } from "../src/core/rng.js";
+import { VERSION } from "../src/core/version.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 import { writeGeneratedTraffic } from "../src/synth/writeGeneratedTraffic.js";
 
@@ -25,6 +26,12 @@ beforeAll(async () => {
 });
 
 describe("roadsieve command line", () => {
+  it("--version prints the version recorded in every output, which matches package.json", () => {
+    const pkg = JSON.parse(readFileSync(join(root, "package.json"), "utf8")) as { version: string };
+    expect(VERSION).toBe(pkg.version);
+    expect(cli(["--version"]).stdout.trim()).toBe(pkg.version);
+  });
+
   it("--help lists the commands and exits 0", () => {
     const r = cli(["--help"]);
     expect(r.code).toBe(0);
