@@ -67,6 +67,10 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
   let nb = new Int32Array(Math.max(16, n));
   let nbLen = 0;
   let nd = 0;
+  // Neighbours of core rows found during their (early-exited) core test, CSR by seenEnd.
+  let seen = new Int32Array(Math.max(16, n));
+  let seenLen = 0;
+  const seenEnd = new Int32Array(n);
   const stack = new Int32Array(Math.max(64, 4 * Math.ceil(Math.log2(n + 2)) + 64));
   const tmp: number[] = [];
 
@@ -132,8 +136,18 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
       }
     }
     nbStart[q] = nbLen;
-    if (isCore) core[q] = 1;
-    else {
+    if (isCore) {
+      core[q] = 1;
+      // Keep the few neighbours found before the early exit: true eps-edges, linked before phase 2.
+      if (seenLen + tmp.length > seen.length) {
+        const grown = new Int32Array(Math.max(seen.length * 2, seenLen + tmp.length));
+        grown.set(seen.subarray(0, seenLen));
+        seen = grown;
+      }
+      for (const p of tmp) if (p !== q) seen[seenLen++] = p;
+      seenEnd[q] = seenLen;
+    } else {
+      seenEnd[q] = seenLen;
       if (nbLen + tmp.length > nb.length) {
         const grown = new Int32Array(Math.max(nb.length * 2, nbLen + tmp.length));
         grown.set(nb.subarray(0, nbLen));
@@ -167,6 +181,15 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
   // A node is "settled" once all its core rows are in one component (components only ever merge,
   // so this stays true); rep is one row of that component, -1 when the node has no core row. A
   // settled node in the query's own component is skipped without a single distance.
+  // Edges already seen in phase 1 connect most of each dense region at no cost, so phase 2 finds
+  // most nodes already settled.
+  for (let q = 0, e = 0; q < n; q++) {
+    const end = seenEnd[q]!;
+    for (; e < end; e++) {
+      const p = seen[e]!;
+      if (core[p]) union(p, q);
+    }
+  }
   const settled = new Uint8Array(nodes);
   const rep = new Int32Array(nodes).fill(-1);
   for (let node = nodes - 1; node >= 0; node--) {
