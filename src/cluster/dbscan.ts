@@ -72,6 +72,9 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
   let seenLen = 0;
   const seenEnd = new Int32Array(n);
   const stack = new Int32Array(Math.max(64, 4 * Math.ceil(Math.log2(n + 2)) + 64));
+  const stackD = new Float64Array(stack.length);
+  // In high dimension a box is almost never wholly inside the eps-ball; the O(d) test is skipped.
+  const checkInside = d <= 16;
   const tmp: number[] = [];
 
   // Per-node weight, for nodes that lie wholly inside a query ball.
@@ -92,12 +95,14 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
     let w = 0;
     tmp.length = 0;
     let sp = 0;
-    stack[sp++] = 0;
+    stack[sp] = 0;
+    stackD[sp++] = 0;
     let isCore = false;
     while (sp > 0 && !isCore) {
-      const node = stack[--sp]!;
-      if (tree.boxDist2(node, pts, qo) > r2) continue;
-      if (tree.boxMaxDist2(node, pts, qo) <= r2) {
+      --sp;
+      const node = stack[sp]!;
+      if (stackD[sp]! > r2) continue;
+      if (checkInside && tree.boxMaxDist2(node, pts, qo) <= r2) {
         // The whole box is within eps: every row in it is a neighbour, no distances needed.
         w += nodeW[node]!;
         if (w >= minPts) isCore = true;
@@ -126,12 +131,18 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
         // The child on the query's side first: neighbours are found sooner.
         const l = left[node]!;
         const r = right[node]!;
-        if (tree.boxDist2(l, pts, qo) <= tree.boxDist2(r, pts, qo)) {
-          stack[sp++] = r;
-          stack[sp++] = l;
+        const dl = tree.boxDist2(l, pts, qo);
+        const dr = tree.boxDist2(r, pts, qo);
+        if (dl <= dr) {
+          stack[sp] = r;
+          stackD[sp++] = dr;
+          stack[sp] = l;
+          stackD[sp++] = dl;
         } else {
-          stack[sp++] = l;
-          stack[sp++] = r;
+          stack[sp] = l;
+          stackD[sp++] = dl;
+          stack[sp] = r;
+          stackD[sp++] = dr;
         }
       }
     }
