@@ -49,7 +49,7 @@ header{padding:28px 40px 18px;border-bottom:3px solid var(--accent)}
 header h1{margin:0;font-size:24px}header p{margin:4px 0 0;color:var(--muted)}
 nav{padding:8px 40px;border-bottom:1px solid var(--line);font-size:13px;position:sticky;top:0;background:#fff;z-index:2}
 nav a{margin-right:14px;color:var(--accent);text-decoration:none}
-main{padding:10px 40px 40px;max-width:1200px}
+main{padding:10px 40px 40px;max-width:1200px;overflow-x:hidden}
 section{margin:26px 0}section h2{font-size:18px;border-bottom:1px solid var(--line);padding-bottom:4px}
 .tiles{display:flex;flex-wrap:wrap;gap:12px;margin:18px 0}
 .tile{background:var(--panel);border:1px solid var(--line);border-radius:6px;padding:10px 14px;min-width:150px}
@@ -57,6 +57,7 @@ section{margin:26px 0}section h2{font-size:18px;border-bottom:1px solid var(--li
 .caution{border-left:4px solid var(--alert);background:#fbf1f0;padding:8px 16px}
 figure{margin:14px 0}figcaption{color:var(--muted);font-size:12px}
 table{border-collapse:collapse;font-size:12px;margin:10px 0;width:100%}
+.tablewrap{overflow-x:auto;max-width:100%}
 th,td{border:1px solid var(--line);padding:4px 6px;text-align:left;vertical-align:top}
 th{background:var(--panel);position:sticky;top:34px}td.num{text-align:right;font-variant-numeric:tabular-nums}
 .note{color:var(--muted);font-size:12px}
@@ -73,7 +74,7 @@ function renderTable(t: ReportTable): string {
     .map((r) => `<tr>${r.map((v) => (typeof v === "number" ? `<td class="num">${escapeHtml(String(v))}</td>` : `<td>${escapeHtml(v)}</td>`)).join("")}</tr>`)
     .join("\n");
   const more = t.rows.length > max ? `<p class="note">${t.rows.length - max} more rows are in plan.csv / plan.json.</p>` : "";
-  return `${t.caption ? `<p class="note">${escapeHtml(t.caption)}</p>` : ""}<table>${head}\n${body}</table>${more}`;
+  return `${t.caption ? `<p class="note">${escapeHtml(t.caption)}</p>` : ""}<div class="tablewrap"><table>${head}\n${body}</table></div>${more}`;
 }
 
 /**

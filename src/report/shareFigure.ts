@@ -23,20 +23,27 @@ export function shareFigure(bars: ShareBar[], unrepresented?: { kmShare: number;
   const names = rows.map((b) => b.name);
   const reasonColour = (r: string): string =>
     r === "left out" ? NOISE_COLOUR : r === "representative" ? PALETTE[0] : r === "critical" ? "#b3261e" : PALETTE[1];
+  // One bar trace per reason, so that the legend explains the colours; the category order of the
+  // y axis stays the order of `rows`.
+  const reasons = [...new Set(rows.map((b) => b.reason))];
+  const traces = reasons.map((reason) => {
+    const mine = rows.filter((b) => b.reason === reason);
+    return {
+      type: "bar",
+      orientation: "h",
+      name: reason,
+      y: mine.map((b) => b.name),
+      x: mine.map((b) => round(100 * b.kmShare, 4)),
+      marker: { color: reasonColour(reason) },
+      text: mine.map((b) => `${(100 * b.kmShare).toFixed(2)} %`),
+      textposition: "outside",
+      hovertext: mine.map((b) => b.hover ?? `${b.name}: ${b.reason}`),
+      hoverinfo: "text+x",
+    };
+  });
   return {
     data: [
-      {
-        type: "bar",
-        orientation: "h",
-        name: "share of vehicle-km",
-        y: names,
-        x: rows.map((b) => round(100 * b.kmShare, 4)),
-        marker: { color: rows.map((b) => reasonColour(b.reason)) },
-        text: rows.map((b) => `${(100 * b.kmShare).toFixed(2)} %`),
-        textposition: "outside",
-        hovertext: rows.map((b) => b.hover ?? `${b.name}: ${b.reason}`),
-        hoverinfo: "text+x",
-      },
+      ...traces,
       {
         type: "scatter",
         mode: "markers",
@@ -48,7 +55,8 @@ export function shareFigure(bars: ShareBar[], unrepresented?: { kmShare: number;
     ],
     layout: baseLayout("What each test case stands for (share of recorded vehicle-km; tick = share of time)", {
       xaxis: { title: { text: "share (%)" }, rangemode: "tozero" },
-      yaxis: { autorange: "reversed", automargin: true },
+      yaxis: { autorange: "reversed", automargin: true, categoryorder: "array", categoryarray: names },
+      barmode: "overlay",
       height: Math.max(320, 22 * rows.length + 120),
       showlegend: true,
       legend: { orientation: "h", y: -0.12 },
