@@ -93,10 +93,10 @@ async function kmeansCase(
   const init = kmeansPlusPlus(X, k, { seed: 1, sampleSize: 20_000 });
   log(`k-means++ seeding on a 20,000-row sample: ${ms(t)} ms (not part of the timed fits; every fit starts from these centres)`);
   const f: Figures = { n, d, k };
-  // JIT warm-up (scikit-learn's loops are compiled ahead of time): a short fit on the first 40,000
-  // rows; it also starts the worker pool, which k-means keeps for the rest of the process.
+  // JIT warm-up (scikit-learn's loops are compiled ahead of time): a short fit on the first 60,000
+  // rows (above MIN_ROWS_FOR_THREADS, so it also starts and warms the worker pool, which k-means keeps).
   t = performance.now();
-  const warm = Math.min(n, 40_000);
+  const warm = Math.min(n, 60_000);
   kmeans({ data: X.data.subarray(0, warm * d), rows: warm, cols: d }, k, { init, maxIter: 3 });
   log(`warm-up fit on ${warm} rows: ${ms(t)} ms (not timed)`);
   t = performance.now();
