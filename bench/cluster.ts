@@ -87,8 +87,9 @@ async function kmeansCase(
   const d = 32;
   const k = 64;
   let t = performance.now();
-  const { X } = makeBlobs(n, d, k, { seed: 1 });
-  log(`\n== k-means n=${n} d=${d} k=${k} (data generated in ${ms(t)} ms)`);
+  // Rows in a SharedArrayBuffer (as `shareMatrix` makes them) so the worker threads read them in place.
+  const { X } = makeBlobs(n, d, k, { seed: 1, shared: true });
+  log(`\n== k-means n=${n} d=${d} k=${k} (data generated in ${ms(t)} ms, in a SharedArrayBuffer)`);
   t = performance.now();
   const init = kmeansPlusPlus(X, k, { seed: 1, sampleSize: 20_000 });
   log(`k-means++ seeding on a 20,000-row sample: ${ms(t)} ms (not part of the timed fits; every fit starts from these centres)`);

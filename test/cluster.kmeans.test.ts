@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { kmeans as mlKmeans } from "ml-kmeans";
-import { kmeans, kmeansPlusPlus } from "../src/cluster/index.js";
+import { kmeans, kmeansPlusPlus, shareMatrix } from "../src/cluster/index.js";
 import { InputError } from "../src/core/errors.js";
 import { Rng } from "../src/core/rng.js";
 import type { Matrix } from "../src/core/matrix.js";
@@ -221,8 +221,12 @@ describe("kmeans with worker threads", () => {
     expect(Buffer.from(two.centroids.data.buffer).equals(Buffer.from(one.centroids.data.buffer))).toBe(true);
     expect(two.inertia).toBe(one.inertia);
     expect(two.iterations).toBe(one.iterations);
-    // The worker pool is kept between calls: a second call reuses it and gives the same bytes.
-    const again = kmeans(X, 12, { init, threads: 2 });
+    // The worker pool is kept between calls: a second call reuses it and gives the same bytes; a
+    // matrix already in shared memory (shareMatrix) is used in place and changes nothing either.
+    const shared = shareMatrix(X);
+    expect(shared.data.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(shareMatrix(shared)).toBe(shared);
+    const again = kmeans(shared, 12, { init, threads: 2 });
     expect(Buffer.from(again.labels.buffer).equals(Buffer.from(one.labels.buffer))).toBe(true);
     expect(again.inertia).toBe(one.inertia);
     const ref = referenceLloyd(X, init, one.iterations);

@@ -227,6 +227,15 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
   };
 }
 
+/**
+ * A copy of X in a SharedArrayBuffer (X itself if it already is one). k-means hands such a matrix to
+ * its worker threads without copying it on every call — worth doing once before many fits.
+ */
+export function shareMatrix(X: Matrix): Matrix {
+  if (isShared(X.data)) return X;
+  return { data: copyShared(X.data), rows: X.rows, cols: X.cols };
+}
+
 function copyShared(a: Float64Array): Float64Array {
   const s = new Float64Array(new SharedArrayBuffer(a.length * 8));
   s.set(a);

@@ -3,7 +3,7 @@ import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import type { Progress } from "../core/progress.js";
 import { checkInt, checkMatrix } from "./_validate.js";
-import { kmeans, type KMeansOptions } from "./kmeans.js";
+import { kmeans, shareMatrix, MIN_ROWS_FOR_THREADS, type KMeansOptions } from "./kmeans.js";
 import { calinskiHarabasz, daviesBouldin, meanIgnoringNaN, SILHOUETTE_SAMPLE_SIZE } from "./metrics.js";
 import { condensedDistances, silhouetteFromCondensed } from "./_pairwise.js";
 
@@ -65,9 +65,11 @@ export function sweepK(X: Matrix, options: SweepKOptions = {}): SweepKResult {
   const rows: SweepKRow[] = [];
   const warnings: string[] = [];
   const total = kMax - kMin + 1;
+  // One shared copy for all fits instead of one per fit when k-means uses threads.
+  const Xs = X.rows >= MIN_ROWS_FOR_THREADS && kmOptions.threads !== 1 ? shareMatrix(X) : X;
   for (let k = kMin; k <= kMax; k++) {
     progress?.({ stage: "sweepK", done: k - kMin, total, message: `k=${k}` });
-    const r = kmeans(X, k, { ...kmOptions, rng: rng.fork(`k=${k}`) });
+    const r = kmeans(Xs, k, { ...kmOptions, rng: rng.fork(`k=${k}`) });
     for (const w of r.warnings) warnings.push(`k=${k}: ${w}`);
     const sub = sample ? Int32Array.from(sample, (i) => r.labels[i]!) : r.labels;
     let used = 0;
