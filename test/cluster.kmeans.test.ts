@@ -231,6 +231,13 @@ describe("kmeans with worker threads", () => {
     expect(again.inertia).toBe(one.inertia);
     const ref = referenceLloyd(X, init, one.iterations);
     expectSameLabels(one.labels, ref.labels);
+    // Weighted fits too (the weights go to the workers as well).
+    const w = Float64Array.from({ length: X.rows }, (_, i) => 0.5 + (i % 7) / 3);
+    const w1 = kmeans(X, 12, { init, weights: w, threads: 1 });
+    const w2 = kmeans(X, 12, { init, weights: w, threads: 2 });
+    expect(Buffer.from(w2.labels.buffer).equals(Buffer.from(w1.labels.buffer))).toBe(true);
+    expect(w2.inertia).toBe(w1.inertia);
+    expect(Array.from(w2.clusterWeights)).toEqual(Array.from(w1.clusterWeights));
   });
 });
 
