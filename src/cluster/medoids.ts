@@ -110,39 +110,52 @@ function distanceSum(X: Float64Array, d: number, xi: number, rows: Int32Array, o
 /** Exact evaluations tried with the whole-cluster bound before the cluster is split into groups. */
 const SINGLE_GROUP_BUDGET = 24;
 
-export function exactMedoid(X: Float64Array, d: number, rows: Int32Array): { index: number; sum: number; evaluated: number } {
-  const m = rows.length;
+export function exactMedoid(Xall: Float64Array, d: number, rowIds: Int32Array): { index: number; sum: number; evaluated: number } {
+  const m = rowIds.length;
   if (m <= 2) {
     // One row, or two rows with equal sums: the lowest index.
-    return { index: rows[0]!, sum: m === 1 ? 0 : distanceSum(X, d, rows[0]!, rows, null), evaluated: m };
+    return { index: rowIds[0]!, sum: m === 1 ? 0 : distanceSum(Xall, d, rowIds[0]!, rowIds, null), evaluated: m };
   }
+  // The cluster's rows copied together once: every later pass reads contiguous memory instead of
+  // rows scattered over the whole matrix. Local index order = row order, so ties still go to the
+  // lowest row.
+  const X = new Float64Array(m * d);
+  for (let j = 0; j < m; j++) X.set(Xall.subarray(rowIds[j]! * d, rowIds[j]! * d + d), j * d);
+  const rows = Int32Array.from({ length: m }, (_, j) => j);
   const whole = new MomentBounds(X, d, rows, 8);
   const lb = new Float64Array(m);
   for (let j = 0; j < m; j++) lb[j] = whole.bound(X, rows[j]! * d);
-  let order = Int32Array.from({ length: m }, (_, i) => i).sort((a, b) => lb[a]! - lb[b]! || a - b);
+  // Candidates come off a binary min-heap keyed by (bound, index): the search usually stops after a
+  // few dozen, so a full sort would be wasted.
+  let heap = Int32Array.from({ length: m }, (_, i) => i);
+  let size = m;
+  heapify(heap, size, lb);
   const tri = new Float64Array(m); // trimed bounds, 0 = none yet
   const dist = new Float64Array(m);
   let best = Infinity;
   let bestIdx = -1;
   let evaluated = 0;
   let grouped = false;
-  for (let o = 0; o < order.length; o++) {
-    const p = order[o]!;
-    if (lb[p]! * (1 - MARGIN) > best) break; // sorted: no later member can win
+  while (size > 0) {
+    const p = heap[0]!;
+    if (lb[p]! * (1 - MARGIN) > best) break; // the smallest bound left: no other member can win
+    heap[0] = heap[--size]!;
+    siftDown(heap, size, lb, 0);
     if (tri[p]! * (1 - MARGIN) > best) continue;
     if (!grouped && evaluated >= SINGLE_GROUP_BUDGET && m >= 512) {
       // The whole-cluster bound is not pruning (a cluster of several modes): bound each member by
       // the sum of per-group bounds over a small k-means split, and go on with the members left.
       grouped = true;
       const groups = splitIntoGroups(X, d, rows, Math.min(8, Math.floor(m / 64)));
-      const rest = Array.from(order.subarray(o)).filter((q) => Math.max(lb[q]!, tri[q]!) * (1 - MARGIN) <= best);
+      const rest = [p, ...heap.subarray(0, size)].filter((q) => Math.max(lb[q]!, tri[q]!) * (1 - MARGIN) <= best);
       for (const q of rest) {
         let s = 0;
         for (const g of groups) s += g.bound(X, rows[q]! * d);
         if (s > lb[q]!) lb[q] = s;
       }
-      order = Int32Array.from(rest).sort((a, b) => lb[a]! - lb[b]! || a - b);
-      o = -1;
+      heap = Int32Array.from(rest);
+      size = heap.length;
+      heapify(heap, size, lb);
       continue;
     }
     if (whole.tight(X, rows[p]! * d) * (1 - MARGIN) > best) continue;
@@ -158,7 +171,30 @@ export function exactMedoid(X: Float64Array, d: number, rows: Int32Array): { ind
       if (b > tri[j]!) tri[j] = b;
     }
   }
-  return { index: bestIdx, sum: best, evaluated };
+  return { index: rowIds[bestIdx]!, sum: best, evaluated };
+}
+
+function before(a: number, b: number, key: Float64Array): boolean {
+  return key[a]! < key[b]! || (key[a] === key[b] && a < b);
+}
+
+function siftDown(h: Int32Array, size: number, key: Float64Array, i: number): void {
+  for (;;) {
+    const l = 2 * i + 1;
+    const r = l + 1;
+    let m = i;
+    if (l < size && before(h[l]!, h[m]!, key)) m = l;
+    if (r < size && before(h[r]!, h[m]!, key)) m = r;
+    if (m === i) return;
+    const t = h[i]!;
+    h[i] = h[m]!;
+    h[m] = t;
+    i = m;
+  }
+}
+
+function heapify(h: Int32Array, size: number, key: Float64Array): void {
+  for (let i = (size >> 1) - 1; i >= 0; i--) siftDown(h, size, key, i);
 }
 
 /** Split a cluster's rows into up to g groups with a small seeded k-means; one MomentBounds per group. */
