@@ -58,7 +58,7 @@ function addRow(sums, so, X, xo, d, w) {
 // best true distance, or that Elkan's centre–centre test rules out.
 function opInit(S, ch0, ch1) {
   var n = S.n, d = S.d, k = S.k, X = S.X, W = S.W, C = S.C, CC = S.CC, p = S.p, P = S.proj, CP = S.cproj;
-  var labels = S.labels, upper = S.upper, lower = S.lower, sums = S.sums, wsum = S.wsum, lb = S.scratch;
+  var labels = S.labels, upper = S.upper, lower = S.lower, sums = S.sums, wsum = S.wsum;
   var pd2 = S.pd2, xp = S.xp;
   for (var ch = ch0; ch < ch1; ch++) {
     var r0 = ch * S.chunk, r1 = Math.min(n, r0 + S.chunk), so = ch * k * d, wo = ch * k;
@@ -80,21 +80,29 @@ function opInit(S, ch0, ch1) {
       }
       var best = first, bsq = dist2(X, xo, C, first * d, d), bd = Math.sqrt(bsq);
       nd++;
-      lb[first] = bd;
+      // The two smallest per-centre lower bounds (and the index of the smallest), so the bound on
+      // the second-nearest centre needs no second pass: it is m1 unless m1 belongs to the winner.
+      var m1 = bd, i1 = first, m2 = Infinity, v = 0;
       for (var j3 = 0; j3 < k; j3++) {
         if (j3 === first) continue;
         var pj = pd2[j3];
-        if (pj * (1 - SLACK) > bsq) { lb[j3] = Math.sqrt(pj) * (1 - SLACK); continue; }
-        var cc = CC[best * k + j3];
-        if (cc * (1 - SLACK) > 2 * bd) { lb[j3] = cc - bd; continue; }
-        var q = dist2(X, xo, C, j3 * d, d);
-        nd++;
-        var qd = Math.sqrt(q);
-        lb[j3] = qd;
-        if (q < bsq || (q === bsq && j3 < best)) { best = j3; bsq = q; bd = qd; }
+        if (pj * (1 - SLACK) > bsq) {
+          if (pj >= m2 * m2) continue; // cannot be among the two smallest bounds: skip the sqrt
+          v = Math.sqrt(pj) * (1 - SLACK);
+        } else {
+          var cc = CC[best * k + j3];
+          if (cc * (1 - SLACK) > 2 * bd) {
+            v = cc - bd;
+          } else {
+            var q = dist2(X, xo, C, j3 * d, d);
+            nd++;
+            v = Math.sqrt(q);
+            if (q < bsq || (q === bsq && j3 < best)) { best = j3; bsq = q; bd = v; }
+          }
+        }
+        if (v < m1) { m2 = m1; m1 = v; i1 = j3; } else if (v < m2) m2 = v;
       }
-      var l = Infinity;
-      for (var j2 = 0; j2 < k; j2++) if (j2 !== best && lb[j2] < l) l = lb[j2];
+      var l = i1 === best ? m2 : m1;
       labels[i] = best;
       upper[i] = bd;
       lower[i] = l;
