@@ -277,6 +277,9 @@ describe("kmeans options and seeding", () => {
     expect(() => kmeans(iris, 200)).toThrow(InputError);
     expect(() => kmeans(iris, 200)).toThrow("n_samples=150 should be >= n_clusters=200");
     expect(() => kmeans(iris, 3, { maxIter: 0 })).toThrow("maxIter=0 should be an integer >= 1");
+    const bad = { data: Float64Array.from(iris.data), rows: 150, cols: 4 };
+    bad.data[7 * 4 + 2] = NaN;
+    expect(() => kmeans(bad, 3)).toThrow("X: row 7, column 2 is NaN; expected a finite number");
     expect(() => kmeans(iris, 3, { weights: new Float64Array(3) })).toThrow("weights.length=3 should equal n_samples=150");
     // @ts-expect-error -- testing a wrong literal
     expect(() => kmeans(iris, 3, { algorithm: "fast" })).toThrow('algorithm="fast" should be "hamerly" or "lloyd"');

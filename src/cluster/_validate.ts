@@ -3,7 +3,7 @@ import type { Matrix } from "../core/matrix.js";
 
 /** Boundary checks shared by the cluster stage; messages quote the value and what was expected. */
 
-export function checkMatrix(X: Matrix, name = "X", minRows = 1): void {
+export function checkMatrix(X: Matrix, name = "X", minRows = 1, checkValues = true): void {
   if (!X || typeof X !== "object" || !(X.data instanceof Float64Array))
     throw new InputError(`${name} should be a Matrix { data: Float64Array, rows, cols }`);
   if (!Number.isInteger(X.rows) || !Number.isInteger(X.cols) || X.rows < 0 || X.cols < 1)
@@ -11,16 +11,20 @@ export function checkMatrix(X: Matrix, name = "X", minRows = 1): void {
   if (X.data.length !== X.rows * X.cols)
     throw new InputError(`${name}: data.length=${X.data.length} should equal rows*cols=${X.rows * X.cols}`);
   if (X.rows < minRows) throw new InputError(`${name}: n_samples=${X.rows} should be >= ${minRows}`);
+  if (!checkValues) return;
   const a = X.data;
   for (let i = 0; i < a.length; i++) {
     const v = a[i]!;
-    if (v - v !== 0)
-      throw new InputError(`${name}: row ${Math.floor(i / X.cols)}, column ${i % X.cols} is ${v}; expected a finite number`, {
-        row: Math.floor(i / X.cols),
-        column: String(i % X.cols),
-        value: v,
-      });
+    if (v - v !== 0) throw notFinite(name, X.cols, i, v);
   }
+}
+
+export function notFinite(name: string, cols: number, i: number, v: number): InputError {
+  return new InputError(`${name}: row ${Math.floor(i / cols)}, column ${i % cols} is ${v}; expected a finite number`, {
+    row: Math.floor(i / cols),
+    column: String(i % cols),
+    value: v,
+  });
 }
 
 export function checkInt(name: string, v: unknown, min: number, max = Infinity): number {

@@ -2,10 +2,10 @@ import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import type { Progress } from "../core/progress.js";
-import { checkInt, checkMatrix, checkNumber, checkThreads, checkWeights } from "./_validate.js";
+import { checkInt, checkMatrix, checkNumber, checkThreads, checkWeights, notFinite } from "./_validate.js";
 import { KMEANS_KERNEL_SOURCE, OP_HAMERLY, OP_INERTIA, OP_INIT, OP_LLOYD } from "./_kmeansKernel.js";
 import { Team, autoThreads, isShared, ref, sharedF64, sharedI32 } from "./_team.js";
-import { kmeansPlusPlus } from "./kmeansPlusPlus.js";
+import { seedKMeansPlusPlus } from "./kmeansPlusPlus.js";
 import { symmetricEigen } from "../embed/_symEigen.js";
 
 export type KMeansAlgorithm = "hamerly" | "lloyd";
@@ -83,7 +83,8 @@ interface ResolvedKMeansOptions {
 }
 
 function resolveOptions(X: Matrix, k: number, o: KMeansOptions): ResolvedKMeansOptions {
-  checkMatrix(X, "X");
+  checkMatrix(X, "X", 1, false); // values are checked in the one pass of scanRows
+
   checkInt("k", k, 1);
   if (X.rows < k) throw new InputError(`n_samples=${X.rows} should be >= n_clusters=${k}`);
   const init = o.init ?? "k-means++";
@@ -134,6 +135,33 @@ export function absoluteTolerance(X: Matrix, tol: number): number {
 }
 
 /**
+ * One pass over X: throws InputError at the first non-finite value (naming row and column) and
+ * returns tol · mean per-feature variance. The variance comes from sums of x - (first row), which is
+ * ample precision for a stopping threshold and saves a second pass over a large matrix.
+ */
+function scanRows(X: Matrix, tol: number): number {
+  const { rows: n, cols: d, data } = X;
+  const s1 = new Float64Array(d);
+  const s2 = new Float64Array(d);
+  for (let i = 0; i < n; i++) {
+    const o = i * d;
+    for (let t = 0; t < d; t++) {
+      const v = data[o + t]!;
+      if (v - v !== 0) throw notFinite("X", d, o + t, v);
+      const a = v - data[t]!;
+      s1[t]! += a;
+      s2[t]! += a * a;
+    }
+  }
+  let s = 0;
+  for (let t = 0; t < d; t++) {
+    const m = s1[t]! / n;
+    s += Math.max(0, s2[t]! / n - m * m);
+  }
+  return (s / d) * tol;
+}
+
+/**
  * k-means (Lloyd's algorithm) with k-means++ seeding (Arthur & Vassilvitskii, "k-means++: the
  * advantages of careful seeding", SODA 2007) and exact triangle-inequality acceleration (Hamerly
  * 2010). Iteration and convergence follow scikit-learn's KMeans: an iteration assigns every row to
@@ -159,7 +187,7 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     for (let i = 0; i < n; i++) tw += o.weights[i]!;
     if (!(tw > 0)) throw new InputError("weights sum to 0; at least one row needs a positive weight");
   }
-  const tolAbs = absoluteTolerance(X, o.tol);
+  const tolAbs = scanRows(X, o.tol);
 
   const shared = o.threads > 1;
   const chunk = Math.max(1024, Math.ceil(n / 256));
@@ -194,7 +222,7 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     for (let r = 0; r < nInit; r++) {
       const init =
         o.init === "k-means++"
-          ? kmeansPlusPlus(X, k, { rng: o.rng.fork(`kmeans++/${r}`), weights: o.weights ?? undefined, sampleSize: o.initSampleSize })
+          ? seedKMeansPlusPlus(X, k, { rng: o.rng.fork(`kmeans++/${r}`), weights: o.weights ?? undefined, sampleSize: o.initSampleSize })
           : o.init;
       const run = runOnce(team, bufs, { n, d, k, nChunks }, init.data, o, tolAbs, r, nInit);
       distanceEvaluations += run.distanceEvaluations;

@@ -25,6 +25,11 @@ export function kmeansPlusPlus(X: Matrix, k: number, options: KMeansPlusPlusOpti
   checkMatrix(X, "X", 1);
   checkInt("k", k, 1);
   if (X.rows < k) throw new InputError(`n_samples=${X.rows} should be >= n_clusters=${k}`);
+  return seedKMeansPlusPlus(X, k, options);
+}
+
+/** kmeansPlusPlus without the boundary checks, for callers that already validated X (kmeans). */
+export function seedKMeansPlusPlus(X: Matrix, k: number, options: KMeansPlusPlusOptions): Matrix {
   const rng = options.rng ?? new Rng(options.seed ?? 0);
   const trials = checkInt("localTrials", options.localTrials ?? 2 + Math.floor(Math.log(k)), 1);
   const wAll = checkWeights(options.weights, X.rows);
