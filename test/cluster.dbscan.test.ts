@@ -158,6 +158,45 @@ print(json.dumps({'labels': db.labels_.tolist(), 'core': db.core_sample_indices_
   });
 });
 
+describe("dbscan threads and weights", () => {
+  it("gives identical labels and core rows on 1 and 2 threads", () => {
+    const { X } = makeBlobs(30_000, 4, 8, { seed: 3, std: 1, box: 8 });
+    const one = dbscan(X, { eps: 0.6, minPts: 6, threads: 1 });
+    const two = dbscan(X, { eps: 0.6, minPts: 6, threads: 2 });
+    expect(one.nClusters).toBeGreaterThan(1);
+    expect(Buffer.from(two.labels.buffer).equals(Buffer.from(one.labels.buffer))).toBe(true);
+    expect(Buffer.from(two.core).equals(Buffer.from(one.core))).toBe(true);
+  });
+
+  it.skipIf(missing !== null)("with fractional weights equals scikit-learn's DBSCAN(sample_weight=…)", () => {
+    // Weights of 0.1–0.5 make rows need 10–50 neighbours to be core, so non-core rows have long
+    // neighbour lists (the overflow path) — and 1 and 2 threads must agree too.
+    const { X } = makeBlobs(25_000, 3, 6, { seed: 8, std: 1, box: 6 });
+    const rng = new Rng(2);
+    const w = Float64Array.from({ length: X.rows }, () => rng.uniform(0.1, 0.5));
+    const ws = new PyWorkspace();
+    try {
+      ws.writeF64("X.bin", X.data);
+      ws.writeF64("w.bin", w);
+      const sk = ws.run<number[]>(`
+from sklearn.cluster import DBSCAN
+X = np.fromfile(DIR + '/X.bin').reshape(-1, 3)
+w = np.fromfile(DIR + '/w.bin')
+print(json.dumps(DBSCAN(eps=0.35, min_samples=5).fit(X, sample_weight=w).labels_.tolist()))
+`);
+      for (const threads of [1, 2]) {
+        const r = dbscan(X, { eps: 0.35, minPts: 5, weights: w, threads });
+        let diff = 0;
+        for (let i = 0; i < X.rows; i++) if (r.labels[i] !== sk[i]) diff++;
+        expect(diff, `threads=${threads}`).toBe(0);
+        expect(r.nNoise).toBeGreaterThan(0);
+      }
+    } finally {
+      ws.dispose();
+    }
+  });
+});
+
 describe("suggestEps", () => {
   it("kneeOfIncreasing finds the corner of a hockey-stick curve", () => {
     const y = new Float64Array(100);

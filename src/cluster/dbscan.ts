@@ -1,8 +1,35 @@
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import type { Progress } from "../core/progress.js";
-import { checkMatrix, checkNumber, checkWeights } from "./_validate.js";
+import { checkMatrix, checkNumber, checkThreads, checkWeights } from "./_validate.js";
 import { KdTree } from "./_kdtree.js";
+import { DBSCAN_KERNEL_SOURCE } from "./_dbscanKernel.js";
+import { Team, autoThreads, ref, sharedF64, sharedI32 } from "./_team.js";
+
+/** Below this many rows the core test runs on one thread. */
+export const MIN_ROWS_FOR_DBSCAN_THREADS = 20_000;
+
+/** Tree positions of every row within eps² = r2 of tree position q (inclusive). */
+function fullNeighbours(tree: KdTree, q: number, r2: number, out: number[]): void {
+  const d = tree.d;
+  const pts = tree.pts;
+  const qo = q * d;
+  const stack: number[] = [0];
+  while (stack.length > 0) {
+    const node = stack.pop()!;
+    if (tree.boxDist2(node, pts, qo) > r2) continue;
+    if (tree.left[node] === -1) {
+      for (let p = tree.start[node]!; p < tree.end[node]!; p++) {
+        let s = 0;
+        for (let t = 0; t < d; t++) {
+          const a = pts[p * d + t]! - pts[qo + t]!;
+          s += a * a;
+        }
+        if (s <= r2) out.push(p);
+      }
+    } else stack.push(tree.right[node]!, tree.left[node]!);
+  }
+}
 
 export interface DbscanOptions {
   /** Neighbourhood radius (Euclidean, inclusive: a row at exactly eps is a neighbour). */
@@ -13,6 +40,8 @@ export interface DbscanOptions {
   weights?: Float64Array;
   /** Rows per kd-tree leaf. Default 16 for d <= 4, 64 for d <= 12, else 128. */
   leafSize?: number;
+  /** Threads for the core test: a number or "auto" (all cores); one thread below 20,000 rows. */
+  threads?: number | "auto";
   progress?: Progress;
 }
 
@@ -61,22 +90,6 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
   // Work in tree order throughout (contiguous leaves); map back at the end.
   const Wt = new Float64Array(n);
   for (let p = 0; p < n; p++) Wt[p] = W ? W[perm[p]!]! : 1;
-  const core = new Uint8Array(n);
-  // Neighbours of non-core rows (tree positions), CSR-style, filled in phase 1.
-  const nbStart = new Int32Array(n + 1);
-  let nb = new Int32Array(Math.max(16, n));
-  let nbLen = 0;
-  let nd = 0;
-  // Neighbours of core rows found during their (early-exited) core test, CSR by seenEnd.
-  let seen = new Int32Array(Math.max(16, n));
-  let seenLen = 0;
-  const seenEnd = new Int32Array(n);
-  const stack = new Int32Array(Math.max(64, 4 * Math.ceil(Math.log2(n + 2)) + 64));
-  const stackD = new Float64Array(stack.length);
-  // In high dimension a box is almost never wholly inside the eps-ball; the O(d) test is skipped.
-  const checkInside = d <= 16;
-  const tmp: number[] = [];
-
   // Per-node weight, for nodes that lie wholly inside a query ball.
   const nodes = tree.nodes;
   const nodeW = new Float64Array(nodes);
@@ -88,86 +101,96 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
     } else nodeW[node] = nodeW[left[node]!]! + nodeW[right[node]!]!;
   }
 
-  // Phase 1: core test with early exit.
+  // Phase 1: core test with early exit, on the thread team (rows are independent).
+  progress?.({ stage: "dbscan:core", done: 0, total: n });
+  const threadsOpt = checkThreads(options.threads ?? "auto");
+  const threads = n < MIN_ROWS_FOR_DBSCAN_THREADS ? 1 : Math.min(threadsOpt === "auto" ? autoThreads() : threadsOpt, Math.floor(n / 5000));
+  const shared = threads > 1;
+  const cap = Math.max(1, Math.ceil(minPts));
+  const chunk = 256;
+  const nChunks = Math.ceil(n / chunk);
+  const sh = <T extends Float64Array | Int32Array>(a: T): T => {
+    if (!shared) return a;
+    const c = (a instanceof Float64Array ? sharedF64(a.length, true) : sharedI32(a.length, true)) as T;
+    c.set(a);
+    return c;
+  };
+  const coreI = sharedI32(n, shared);
+  const cnt = sharedI32(n, shared);
+  const list = sharedI32(n * cap, shared);
+  const stats = sharedF64(nChunks, shared);
+  const bufs = {
+    pts: sh(pts),
+    start: sh(start),
+    end: sh(end),
+    left: sh(left),
+    right: sh(right),
+    lo: sh(tree.lo),
+    hi: sh(tree.hi),
+    nodeW: sh(nodeW),
+    Wt: sh(Wt),
+    core: coreI,
+    cnt,
+    list,
+    stats,
+  };
+  const refs = Object.fromEntries(Object.entries(bufs).map(([k, v]) => [k, ref(v)]));
+  const meta = { n, d, r2, minPts, cap, chunk, nChunks, checkInside: d <= 16 ? 1 : 0 };
+  const team = new Team(DBSCAN_KERNEL_SOURCE, refs, meta, threads);
+  const warnings: string[] = [];
+  if (team.startupProblem) warnings.push(team.startupProblem);
+  try {
+    team.run(0, nChunks);
+  } finally {
+    team.close();
+  }
+  let nd = 0;
+  for (let c = 0; c < nChunks; c++) nd += stats[c]!;
+  const core = new Uint8Array(n);
+  for (let q = 0; q < n; q++) core[q] = coreI[q]!;
+  // Neighbours of non-core rows (complete lists, CSR by nbStart) and of core rows (those met before
+  // the early exit, CSR by seenEnd), as tree positions.
+  const nbStart = new Int32Array(n + 1);
+  const seenEnd = new Int32Array(n);
+  let nbLen = 0;
+  let seenLen = 0;
   for (let q = 0; q < n; q++) {
-    if ((q & 4095) === 0) progress?.({ stage: "dbscan:core", done: q, total: n });
-    const qo = q * d;
-    let w = 0;
-    tmp.length = 0;
-    let sp = 0;
-    stack[sp] = 0;
-    stackD[sp++] = 0;
-    let isCore = false;
-    while (sp > 0 && !isCore) {
-      --sp;
-      const node = stack[sp]!;
-      if (stackD[sp]! > r2) continue;
-      if (checkInside && tree.boxMaxDist2(node, pts, qo) <= r2) {
-        // The whole box is within eps: every row in it is a neighbour, no distances needed.
-        w += nodeW[node]!;
-        if (w >= minPts) isCore = true;
-        else for (let p = start[node]!; p < end[node]!; p++) tmp.push(p);
-        continue;
-      }
-      if (left[node] === -1) {
-        for (let p = start[node]!; p < end[node]!; p++) {
-          const po = p * d;
-          let s = 0;
-          for (let t = 0; t < d; t++) {
-            const a = pts[po + t]! - pts[qo + t]!;
-            s += a * a;
-          }
-          nd++;
-          if (s <= r2) {
-            w += Wt[p]!;
-            tmp.push(p);
-            if (w >= minPts) {
-              isCore = true;
-              break;
-            }
-          }
-        }
-      } else {
-        // The child on the query's side first: neighbours are found sooner.
-        const l = left[node]!;
-        const r = right[node]!;
-        const dl = tree.boxDist2(l, pts, qo);
-        const dr = tree.boxDist2(r, pts, qo);
-        if (dl <= dr) {
-          stack[sp] = r;
-          stackD[sp++] = dr;
-          stack[sp] = l;
-          stackD[sp++] = dl;
-        } else {
-          stack[sp] = l;
-          stackD[sp++] = dl;
-          stack[sp] = r;
-          stackD[sp++] = dr;
-        }
-      }
-    }
+    const c = Math.min(cnt[q]!, cap);
+    if (core[q]) seenLen += c;
+    else nbLen += cnt[q]! > cap ? 0 : c;
+  }
+  const seen = new Int32Array(seenLen);
+  const nbParts: number[] = [];
+  let nb = new Int32Array(nbLen);
+  nbLen = 0;
+  seenLen = 0;
+  for (let q = 0; q < n; q++) {
+    const c = cnt[q]!;
+    const o = q * cap;
     nbStart[q] = nbLen;
-    if (isCore) {
-      core[q] = 1;
-      // Keep the few neighbours found before the early exit: true eps-edges, linked before phase 2.
-      if (seenLen + tmp.length > seen.length) {
-        const grown = new Int32Array(Math.max(seen.length * 2, seenLen + tmp.length));
-        grown.set(seen.subarray(0, seenLen));
-        seen = grown;
-      }
-      for (const p of tmp) if (p !== q) seen[seenLen++] = p;
+    if (core[q]) {
+      for (let e = 0; e < Math.min(c, cap); e++) if (list[o + e] !== q) seen[seenLen++] = list[o + e]!;
       seenEnd[q] = seenLen;
+      continue;
+    }
+    seenEnd[q] = seenLen;
+    if (c <= cap) {
+      for (let e = 0; e < c; e++) nb[nbLen++] = list[o + e]!;
     } else {
-      seenEnd[q] = seenLen;
-      if (nbLen + tmp.length > nb.length) {
-        const grown = new Int32Array(Math.max(nb.length * 2, nbLen + tmp.length));
+      // Fractional weights: the list overflowed its slot; collect it in full here.
+      nbParts.length = 0;
+      fullNeighbours(tree, q, r2, nbParts);
+      if (nbLen + nbParts.length > nb.length) {
+        const grown = new Int32Array(Math.max(nb.length * 2, nbLen + nbParts.length));
         grown.set(nb.subarray(0, nbLen));
         nb = grown;
       }
-      for (const p of tmp) nb[nbLen++] = p;
+      for (const p of nbParts) nb[nbLen++] = p;
     }
   }
   nbStart[n] = nbLen;
+  progress?.({ stage: "dbscan:core", done: n, total: n });
+  const stack = new Int32Array(Math.max(64, 4 * Math.ceil(Math.log2(n + 2)) + 64));
 
   // Phase 2: connect core rows (union–find with path halving; the root is the lowest tree position).
   const parent = Int32Array.from({ length: n }, (_, i) => i);
@@ -317,7 +340,6 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
     if (best < 0) nNoise++;
   }
   progress?.({ stage: "dbscan", done: n, total: n });
-  const warnings: string[] = [];
   if (nClusters === 0) warnings.push(`no core rows: every row is noise at eps=${eps}, minPts=${minPts}; try a larger eps (see suggestEps)`);
   else if (nNoise > 0.5 * n) warnings.push(`${nNoise} of ${n} rows are noise; eps=${eps} may be too small (see suggestEps)`);
   return { labels, core: coreOut, nClusters, nNoise, eps, minPts, distanceEvaluations: nd, warnings };
