@@ -1,7 +1,7 @@
 import type { Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
 import { checkLabels, checkMatrix } from "./_validate.js";
-import { symmetricEigen } from "../embed/_symEigen.js";
+import { addOuterProducts4, symmetricEigen } from "../embed/_symEigen.js";
 import { kmeans } from "./kmeans.js";
 
 export interface MedoidsOptions {
@@ -258,14 +258,7 @@ class MomentBounds {
         T += s;
         for (let t = 0; t < d; t++) c3[t]! += s * U[q * d + t]!;
       }
-      for (let a = 0; a < d; a++) {
-        const u0 = U[a]!;
-        const u1 = U[d + a]!;
-        const u2 = U[2 * d + a]!;
-        const u3 = U[3 * d + a]!;
-        const row = a * d;
-        for (let b = a; b < d; b++) cov[row + b]! += u0 * U[b]! + u1 * U[d + b]! + u2 * U[2 * d + b]! + u3 * U[3 * d + b]!;
-      }
+      addOuterProducts4(cov, U, d);
     }
     T /= m;
     let varR2 = 0;

@@ -159,3 +159,18 @@ function tql2(V: Float64Array, d: Float64Array, e: Float64Array, n: number): voi
     e[l] = 0;
   }
 }
+
+/**
+ * Upper triangle of `cov` (d × d, row-major) += Σ_q u_q u_qᵀ over the four rows u_0..u_3 of `U`
+ * (4 × d; unused rows zero). Four rank-1 updates per pass over the matrix keep it in cache.
+ */
+export function addOuterProducts4(cov: Float64Array, U: Float64Array, d: number): void {
+  for (let a = 0; a < d; a++) {
+    const u0 = U[a]!;
+    const u1 = U[d + a]!;
+    const u2 = U[2 * d + a]!;
+    const u3 = U[3 * d + a]!;
+    const row = a * d;
+    for (let b = a; b < d; b++) cov[row + b]! += u0 * U[b]! + u1 * U[d + b]! + u2 * U[2 * d + b]! + u3 * U[3 * d + b]!;
+  }
+}

@@ -1,6 +1,6 @@
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
-import { symmetricEigen } from "./_symEigen.js";
+import { addOuterProducts4, symmetricEigen } from "./_symEigen.js";
 
 export interface PcaResult {
   /** n × nComponents: the rows projected on the components (centred first). */
@@ -107,14 +107,7 @@ function covariance(data: Float64Array, n: number, d: number, mean: Float64Array
       const o = (i0 + q) * d;
       for (let t = 0; t < d; t++) U[q * d + t] = data[o + t]! - mean[t]!;
     }
-    for (let a = 0; a < d; a++) {
-      const u0 = U[a]!;
-      const u1 = U[d + a]!;
-      const u2 = U[2 * d + a]!;
-      const u3 = U[3 * d + a]!;
-      const row = a * d;
-      for (let b = a; b < d; b++) cov[row + b]! += u0 * U[b]! + u1 * U[d + b]! + u2 * U[2 * d + b]! + u3 * U[3 * d + b]!;
-    }
+    addOuterProducts4(cov, U, d);
   }
   for (let a = 0; a < d; a++)
     for (let b = a; b < d; b++) {
