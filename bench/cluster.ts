@@ -13,8 +13,8 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { kmeans as mlKmeans } from "ml-kmeans";
 import DensityClustering from "density-clustering";
-import { dbscan, kmeans, kmeansPlusPlus, map2d, medoids, suggestEps } from "../dist/index.js";
-import type { Matrix } from "../dist/index.js";
+import { dbscan, kmeans, kmeansPlusPlus, map2d, medoids, suggestEps } from "../src/index.js";
+import type { Matrix } from "../src/index.js";
 import { makeBlobs } from "../test/helpers/blobs.js";
 
 const PY = "/usr/bin/python3";
