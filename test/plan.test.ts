@@ -320,13 +320,9 @@ describe("plan exports", () => {
     expect(text).toMatch(/would need about [\d.]+ million km without an event/);
   });
 
-  it.skipIf(!referencePython())("plan.json validates against docs/plan.schema.json (python jsonschema, draft 2020-12)", () => {
-    const py = referencePython()!;
-    const check = spawnSync(py, ["-c", "import jsonschema"], { encoding: "utf8" });
-    if (check.status !== 0) {
-      console.log("skipping schema validation: python3-jsonschema is not installed");
-      return;
-    }
+  const schemaPython = referencePython() !== null && spawnSync(referencePython()!, ["-c", "import jsonschema"]).status === 0 ? referencePython() : null;
+  it.skipIf(!schemaPython)(`plan.json validates against docs/plan.schema.json (python jsonschema, draft 2020-12)${schemaPython ? "" : " (skipped: /usr/bin/python3 with python3-jsonschema is missing)"}`, () => {
+    const py = schemaPython!;
     const file = join(tmp, "schema-check.json");
     const plans = [plan, buildTestPlan({ scenarios: cat.scenarios, labels: cat.labels, medoids: cat.medoids, clusterMethod: "dbscan" }, { includeNoise: false, zeroFailureReferencePerKm: null })];
     for (const p of plans) {
