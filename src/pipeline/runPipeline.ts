@@ -1,6 +1,6 @@
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
-import type { Matrix } from "../core/matrix.js";
+import { zeros, type Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
 import { VERSION } from "../core/version.js";
 import { dbscan, type DbscanResult } from "../cluster/dbscan.js";
@@ -159,7 +159,8 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
       let cum = 0;
       while (comps < Math.min(cfg.maxComponents, full.explainedVarianceRatio.length) && cum < cfg.variance) cum += full.explainedVarianceRatio[comps++]!;
       comps = Math.max(1, comps);
-      const scores = pca(X, comps).scores;
+      // The leading `comps` columns of the full decomposition's scores are the comps-component scores.
+      const scores = takeColumns(full.scores, comps);
       const minPts = cfg.minPts ?? 2 * comps;
       const sugg = cfg.eps === null ? suggestEps(scores, { minPts, rng: rng.fork("eps") }) : null;
       const eps = cfg.eps ?? sugg!.eps;
@@ -228,4 +229,11 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
     timings,
     warnings,
   };
+}
+
+/** The first `c` columns of a matrix, as a new matrix. */
+function takeColumns(m: Matrix, c: number): Matrix {
+  const out = zeros(m.rows, c);
+  for (let i = 0; i < m.rows; i++) out.data.set(m.data.subarray(i * m.cols, i * m.cols + c), i * c);
+  return out;
 }
