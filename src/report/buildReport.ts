@@ -9,6 +9,8 @@ import { kSweepFigure } from "./kSweepFigure.js";
 import { scenarioMapFigure } from "./scenarioMapFigure.js";
 import { shareFigure, type ShareBar } from "./shareFigure.js";
 import type { TestPlan } from "../plan/types.js";
+import { criticalReasons } from "../plan/criticality.js";
+import { resolveTestPlanOptions } from "../plan/options.js";
 
 const pct = (x: number, digits = 2): string => `${(100 * x).toFixed(digits)} %`;
 const fix = (x: number | null, digits = 2): string => (x === null || !Number.isFinite(x) ? "–" : x.toFixed(digits));
@@ -28,7 +30,9 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
   const n = sc.length;
   const hover = sc.map((s, i) => `${s.id}<br>cluster ${r.labels[i]}<br>${r.typeKeys[i]}<br>${(s.km * 1000).toFixed(0)} m, ${s.seconds.toFixed(1)} s`);
   const reps = plan.testCases.map((t) => t.scenarioIndex);
-  const critical = sc.map((s) => s.criticality.minTtc < (r.options.plan.ttcBelow ?? 1.5) || s.criticality.flags.length > 0);
+  // The plan's own definition of critical, with the thresholds the plan ran with.
+  const planOptions = resolveTestPlanOptions(r.options.plan);
+  const critical = sc.map((s) => criticalReasons(s, planOptions).length > 0);
   const sections: ReportSection[] = [];
 
   sections.push({
@@ -43,7 +47,7 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
     heading: "Scenario map",
     paragraphs: [
       `Every scenario (a ${describeWindow(r)} window of one vehicle's drive) as a point on a 2-D ${r.map.method.toUpperCase()} map of its ${r.embedding.features.length}-feature embedding. ` +
-        `Colours are clusters; grey points are DBSCAN noise, the rare scenarios; diamonds are the test cases; red rings mark scenarios with a low TTC or a criticality flag. ` +
+        `Colours are clusters; grey points are DBSCAN noise, the rare scenarios; diamonds are the test cases; red rings mark the scenarios the plan counts as critical. ` +
         (r.map.fittedOn < n ? `The map was fitted on a seeded sample of ${r.map.fittedOn} scenarios and the rest placed onto it. ` : "") +
         `Distances on the map are only a guide: clustering works on the full embedding.`,
     ],
@@ -161,7 +165,7 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
     tables: [{ caption: "Type keys by frequency (most frequent first)", columns: ["type key", "scenarios"], rows: cov.typeKeys.table.map((t) => [t.kind, t.count]), maxRows: 40 }],
   });
 
-  const thresholds = { ttc: r.options.plan.ttcBelow ?? 1.5, thw: r.options.plan.thwBelow ?? 0.5 };
+  const thresholds = { ttc: planOptions.ttcBelow, thw: planOptions.thwBelow };
   sections.push({
     id: "criticality",
     heading: "Criticality",
