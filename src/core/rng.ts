@@ -1,7 +1,7 @@
 /**
  * Seeded pseudo-random generator: xoshiro128** (Blackman & Vigna, "Scrambled linear pseudorandom
  * number generators", 2018), seeded through splitmix32 so that any 32-bit seed gives a well-mixed
- * state. The library never calls Math.random: every stage that needs randomness takes an Rng.
+ * state. The library has no unseeded randomness: every stage that needs randomness takes an Rng.
  */
 export class Rng {
   private s0: number;
