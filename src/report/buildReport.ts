@@ -91,7 +91,7 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
   });
 
   const clusterFigures: { figure: ReturnType<typeof kSweepFigure>; caption?: string }[] = [];
-  if (r.sweep) clusterFigures.push({ figure: kSweepFigure(r.sweep.rows, r.k, "suggested"), caption: `Rule: ${r.sweep.rule}. Silhouette on ${r.sweep.silhouetteExact ? "all" : `a seeded sample of ${r.sweep.silhouetteSample}`} scenarios.` });
+  if (r.sweep) clusterFigures.push({ figure: kSweepFigure(r.sweep.rows, r.k, "suggested"), caption: `Rule: ${r.sweep.rule}. Silhouette on ${r.sweep.silhouetteExact ? "all" : `a seeded sample of ${r.sweep.silhouetteSample}`} scenarios${r.sweep.silhouetteExact ? "" : ` (standard error at the chosen k ±${(r.sweep.rows.find((x) => x.k === r.k)?.silhouetteSe ?? NaN).toFixed(3)})`}${r.sweep.fitSample < r.scenarios.scenarios.length ? `; the sweep's k-means fits ran on a seeded sample of ${r.sweep.fitSample} of ${r.scenarios.scenarios.length} scenarios, the final clustering on all` : ""}.` });
   if (r.dbscan?.epsSuggestion)
     clusterFigures.push({
       figure: kDistanceFigure(r.dbscan.epsSuggestion.kDistances, r.dbscan.eps, r.dbscan.epsSuggestion.k),
