@@ -110,5 +110,6 @@ export async function readShard(manifestPath: string, options: ReadShardOptions 
       for (let r = 0; r < chunk.rowCount; r++) maneuvers[idx.getItem(r) as number] = decodeValue(mv.getItem(r) as string) as TrackManeuvers;
     }
   });
-  return { set: { ...m.set, scenarios, tensors }, maneuvers, summary: m.summary };
+  // Timings are not stored (they differ between runs); a shard read back reports none.
+  return { set: { scenarios, tensors, ...m.set }, maneuvers, summary: m.summary, timings: {} };
 }

@@ -1,13 +1,7 @@
-import type { TrackManeuvers } from "../maneuvers/types.js";
-import type { RecordingSummary } from "../pipeline/runPipeline.js";
+import type { ExtractedRecording, RecordingSummary } from "../pipeline/extractRecording.js";
 import type { ScenarioSet } from "../scenario/types.js";
 
-/** What extraction produced for one recording (the result of `extractRecording`). */
-export interface ExtractedRecording {
-  set: ScenarioSet;
-  maneuvers: TrackManeuvers[];
-  summary: RecordingSummary;
-}
+export type { ExtractedRecording };
 
 /** One file of a shard, with its checksum so that a torn or mixed-up shard is caught on reading. */
 export interface ShardFile {
