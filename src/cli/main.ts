@@ -11,9 +11,10 @@ import { demoCommand } from "./commands/demo.js";
 import { extractCommand } from "./commands/extract.js";
 import { generateCommand } from "./commands/generate.js";
 import { planCommand } from "./commands/plan.js";
+import { submitCommand, workerCommand } from "./commands/queue.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, extractCommand, checkCommand, generateCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
