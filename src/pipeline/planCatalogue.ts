@@ -132,7 +132,7 @@ export function planCatalogue(
         medoids: med.indices,
         embedding: X,
         typeKeys,
-        clusterMethod: `k-means (k = ${k}${sweep ? ", chosen by silhouette" : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
+        clusterMethod: `k-means (k = ${k}${sweep ? `, chosen by silhouette${sampledSweepNote(sweep, k, n)}` : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
         provenance: {
           seed: o.seed,
           inputChecksums,
@@ -194,4 +194,16 @@ function takeColumns(m: Matrix, c: number): Matrix {
   const out = zeros(m.rows, c);
   for (let i = 0; i < m.rows; i++) out.data.set(m.data.subarray(i * m.cols, i * m.cols + c), i * c);
   return out;
+}
+
+/**
+ * How a sampled k choice was measured, for the plan's method line: the silhouette sample, its
+ * standard error at the chosen k, and the sweep's fit sample. Empty when the sweep was exact, so
+ * small catalogues keep the plain line.
+ */
+function sampledSweepNote(sweep: SweepKResult, k: number, n: number): string {
+  if (sweep.silhouetteExact) return "";
+  const se = sweep.rows.find((r) => r.k === k)?.silhouetteSe ?? NaN;
+  const fits = sweep.fitSample < n ? `; sweep fits on a seeded sample of ${sweep.fitSample}` : "";
+  return ` on a seeded sample of ${sweep.silhouetteSample} of ${n} scenarios, standard error ${se.toFixed(3)}${fits}`;
 }
