@@ -20,5 +20,7 @@ export * from "./exposure/index.js";
 export * from "./coverage/index.js";
 export * from "./plan/index.js";
 export * from "./pipeline/index.js";
+export * from "./shard/index.js";
+export * from "./extract/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";
