@@ -3,6 +3,7 @@ import { hostname } from "node:os";
 import { join } from "node:path";
 import { threadId } from "node:worker_threads";
 import type { DuckDBConnection } from "@duckdb/node-api";
+import { InputError } from "../core/errors.js";
 import { sha256File } from "../core/io.js";
 import { VERSION } from "../core/version.js";
 import { sqlString, withDuckDB } from "../recording/duckdb.js";
@@ -95,8 +96,9 @@ async function readExisting(path: string): Promise<ShardManifest | null> {
 function sameExtraction(m: ShardManifest, ex: ExtractedRecording, options: Record<string, unknown>, path: string): "existing" {
   const tool = `roadsieve ${VERSION}`;
   if (m.tool !== tool || m.inputChecksum !== ex.summary.checksum || canonicalJson(m.options) !== canonicalJson(JSON.parse(encodeValue(options))))
-    throw new Error(
-      `${path}: a different shard of recording "${ex.summary.id}" is already there (${m.tool}, input ${m.inputChecksum.slice(0, 12)}…); this extraction is ${tool}, input ${ex.summary.checksum.slice(0, 12)}…, maybe other options — remove it or write elsewhere`,
+    throw new InputError(
+      `a different shard of recording "${ex.summary.id}" is already there (${m.tool}, input ${m.inputChecksum.slice(0, 12)}…); this extraction is ${tool}, input ${ex.summary.checksum.slice(0, 12)}…, maybe other options — remove it or write elsewhere`,
+      { file: path },
     );
   return "existing";
 }
