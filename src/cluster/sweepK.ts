@@ -12,12 +12,16 @@ export interface SweepKOptions extends Omit<KMeansOptions, "init" | "progress"> 
   kMin?: number;
   /** Largest k tried. Default min(10, n - 1). */
   kMax?: number;
-  /** Silhouette on all rows up to this many, else on a seeded sample of this size. Default 5000. */
+  /**
+   * Silhouette on all rows up to this many, else on a seeded sample of this size. Default 5000, or
+   * 2000 when the fits are sampled (n > fitSampleSize): the pairwise distances of the sample are the
+   * sweep's largest fixed cost, and the standard error stays near 0.005 (stated per row).
+   */
   silhouetteSampleSize?: number;
   /**
    * k-means fits of the sweep on all rows up to this many, else on a seeded uniform sample of this
    * size (with its weights); the silhouette sample is then drawn from the fit sample. The sweep only
-   * ranks k; the final clustering with the chosen k runs on every row. Default 10,000.
+   * ranks k; the final clustering with the chosen k runs on every row. Default 5,000.
    */
   fitSampleSize?: number;
   progress?: Progress;
@@ -58,7 +62,9 @@ export interface SweepKResult {
 }
 
 /** Default of `fitSampleSize`. */
-export const SWEEP_FIT_SAMPLE_SIZE = 10_000;
+export const SWEEP_FIT_SAMPLE_SIZE = 5_000;
+/** Default silhouette sample when the fits are sampled. */
+export const SWEEP_SAMPLED_SILHOUETTE_SIZE = 2_000;
 
 /** The documented rule for `suggestedK`. */
 export const SWEEP_RULE =
@@ -76,8 +82,8 @@ export function sweepK(X: Matrix, options: SweepKOptions = {}): SweepKResult {
   const kMin = checkInt("kMin", options.kMin ?? 2, 2);
   const kMax = checkInt("kMax", options.kMax ?? Math.min(10, X.rows - 1), kMin);
   if (kMax > X.rows - 1) throw new InputError(`kMax=${kMax} should be <= n_samples - 1 = ${X.rows - 1}`);
-  const sampleSize = checkInt("silhouetteSampleSize", options.silhouetteSampleSize ?? SILHOUETTE_SAMPLE_SIZE, 2);
   const fitSize = checkInt("fitSampleSize", options.fitSampleSize ?? SWEEP_FIT_SAMPLE_SIZE, Math.max(kMax + 1, 2));
+  const sampleSize = checkInt("silhouetteSampleSize", options.silhouetteSampleSize ?? (X.rows > fitSize ? SWEEP_SAMPLED_SILHOUETTE_SIZE : SILHOUETTE_SAMPLE_SIZE), 2);
   const rng = options.rng ?? new Rng(options.seed ?? 0);
   const { kMin: _a, kMax: _b, silhouetteSampleSize: _c, fitSampleSize: _d, progress, ...kmOptions } = options;
   const N = X.rows;
