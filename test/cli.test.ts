@@ -81,7 +81,7 @@ describe("roadsieve command line", () => {
     expect(cli(["frobnicate"]).code).toBe(2);
   });
 
-  it("two runs with the same seed write byte-identical plan.json, plan.csv, report.html and Parquet tables", async () => {
+  it("two runs with the same seed write byte-identical plan.json, plan.csv, model.json, report.html and Parquet tables", async () => {
     const outs = [join(dir, "run1"), join(dir, "run2")];
     for (const out of outs) {
       const r = cli(["plan", tracks, "--out", out, "--seed", "9", "--parquet", "--quiet"]);
@@ -89,7 +89,7 @@ describe("roadsieve command line", () => {
       expect(r.stdout).toContain("test cases stand for");
     }
     const parquet = ["recordings", "scenarios", "features", "feature_info", "maneuvers", "test_cases"].map((t) => `catalogue/${t}.parquet`);
-    for (const f of ["plan.json", "plan.csv", "report.html", ...parquet]) {
+    for (const f of ["plan.json", "plan.csv", "model.json", "report.html", ...parquet]) {
       const a = readFileSync(join(outs[0]!, f));
       const b = readFileSync(join(outs[1]!, f));
       expect(a.equals(b), `${f} differs between runs`).toBe(true);

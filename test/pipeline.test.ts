@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { assignScenarios } from "../src/cluster/assignScenarios.js";
 import { Rng } from "../src/core/rng.js";
 import { compensatedSum } from "../src/exposure/compensatedSum.js";
 import { extractRecording } from "../src/pipeline/extractRecording.js";
@@ -82,6 +83,14 @@ describe("runPipeline(recordings) on generated traffic", () => {
     expect(x.summary.scenarios).toBe(sc.length);
     const r = planCatalogue([x.set], [x.summary], [x.maneuvers], { seed: 5, map: "pca" });
     expect(testPlanToJson(r.plan)).toBe(testPlanToJson(result.plan));
+  });
+
+  it("carries a clustering model that puts the run's own scenarios back into their clusters exactly", () => {
+    // The run's labels are the reference (k-means nearest centre, DBSCAN border rule: Ester et al. 1996).
+    const a = assignScenarios(result.model, result.embedding);
+    expect(Array.from(a.labels)).toEqual(Array.from(result.labels));
+    expect(result.model.k).toBe(result.k);
+    expect(result.model.extraction?.scenario).toEqual(JSON.parse(JSON.stringify(result.scenarios.options)));
   });
 
   it("rejects a k larger than the number of scenarios with a message quoting both", () => {

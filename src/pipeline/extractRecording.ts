@@ -44,7 +44,7 @@ export function extractRecording(
   options: PipelineOptions | ResolvedPipelineOptions = {},
   progress?: Progress,
 ): ExtractedRecording {
-  const o = resolvePipelineOptions(options as PipelineOptions);
+  const o = resolvePipelineOptions(options);
   const timings: Record<string, number> = {};
   const timed = <T>(name: string, f: () => T): T => {
     const t0 = performance.now();
