@@ -32,6 +32,13 @@ describe("fitClustering → assignScenarios on the training scenarios", () => {
     const noise = Array.from(fit.labels).filter((l) => l === -1).length;
     expect(noise).toBe(Array.from(fit.dbscan!.labels).filter((l) => l === -1).length);
     expect(fit.model.pca!.components.rows).toBe(fit.dbscan!.components);
+    // Training shares per final label: the km of each label over all km (computed here directly).
+    const total = weights.reduce((a, v) => a + v, 0);
+    for (let c = -1; c < fit.k; c++) {
+      let w = 0;
+      for (let i = 0; i < weights.length; i++) if (fit.labels[i] === c) w += weights[i]!;
+      expect(c < 0 ? fit.model.training.noiseShare : fit.model.training.clusterShare[c]).toBeCloseTo(w / total, 12);
+    }
   });
 
   it("reproduces the fitted labels exactly, k-means labels and DBSCAN noise included", () => {
@@ -151,7 +158,8 @@ describe("a model that does not fit the scenarios", () => {
       [{ ...o, formatVersion: 2 }, `"formatVersion"`],
       [{ ...o, format: "something-else" }, `"format"`],
       [{ ...o, features: (o.features as string[]).slice(1) }, `"standardization.mean"`],
-      [{ ...o, k: (o.k as number) + 1 }, `"kmeans.centroids.rows"`],
+      [{ ...o, k: (o.k as number) + 1 }, `"training.clusterShare"`],
+      [{ ...o, training: { ...(o.training as object), clusterShare: [] }, k: 0 }, `"k"`],
       [{ ...o, dbscan: null }, `"dbscan"`],
     ];
     for (const [bad, field] of cases) expect(() => clusteringModelFromJson(JSON.stringify(bad), "plan/model.json")).toThrow(new RegExp(`^plan/model\\.json, column ${field.replace(/[.]/g, "\\.")}`));

@@ -47,7 +47,7 @@ export function checkModelFeatures(model: Pick<ClusteringModel, "features">, nam
     parts.push(`same names in another order (column ${j}: "${names[j]}" here, "${a[j]}" in the model)`);
   }
   throw new InputError(
-    `${prefix}the clustering model does not match these scenarios — ${parts.join("; ")}. Cut and embed them with the options stored in the model (its "extraction" field), e.g. the same scenario window length`,
+    `${prefix}the clustering model does not match these scenarios — ${parts.join("; ")}. The scenarios must be cut and embedded with the options the model was fitted with (its "extraction" field: the same scenario window and tensor length) by the same feature set; a model from another roadsieve version or other options needs a new plan run`,
   );
 }
 

@@ -17,6 +17,12 @@ export interface ClusteringModel {
   standardization: Standardization;
   k: number;
   kChosenBy: "silhouette" | "given";
+  /**
+   * What the training scenarios looked like, to compare new recordings with: their number, and the
+   * share of their weight (km or hours, see extraction.weightBy; rows when unweighted) per final
+   * label — per k-means cluster after DBSCAN noise left it, and the noise (label −1).
+   */
+  training: { rows: number; clusterShare: Float64Array; noiseShare: number };
   /** k-means centres in the standardized space, with the novelty scale per cluster. */
   kmeans: KMeansModel;
   /** PCA that DBSCAN ran on: mean and the leading components (null when DBSCAN was off). */
@@ -59,6 +65,7 @@ export function clusteringModelToJson(model: ClusteringModel): string {
     },
     k: model.k,
     kChosenBy: model.kChosenBy,
+    training: { rows: model.training.rows, clusterShare: Array.from(model.training.clusterShare), noiseShare: model.training.noiseShare },
     kmeans: { centroids: mat(model.kmeans.centroids), scale: Array.from(model.kmeans.scale), inertia: model.kmeans.inertia },
     pca: model.pca ? { mean: Array.from(model.pca.mean), components: mat(model.pca.components), explainedVariance: model.pca.explainedVariance } : null,
     dbscan: model.dbscan
@@ -122,6 +129,8 @@ export function clusteringModelFromJson(text: string, file?: string): Clustering
   for (const s of standardization.scale) if (!(s > 0)) fail("standardization.scale", "positive numbers", s);
   const k = int(o.k, "k", 1);
   if (o.kChosenBy !== "silhouette" && o.kChosenBy !== "given") fail("kChosenBy", `"silhouette" or "given"`, o.kChosenBy);
+  const tr = obj(o.training, "training");
+  const training = { rows: int(tr.rows, "training.rows", 1), clusterShare: nums(tr.clusterShare, "training.clusterShare", k), noiseShare: num(tr.noiseShare, "training.noiseShare", 0) };
   const kmo = obj(o.kmeans, "kmeans");
   const centroids = matrix(kmo.centroids, "kmeans.centroids", d);
   if (centroids.rows !== k) fail("kmeans.centroids.rows", `k = ${k}`, centroids.rows);
@@ -158,6 +167,7 @@ export function clusteringModelFromJson(text: string, file?: string): Clustering
     standardization,
     k,
     kChosenBy: o.kChosenBy as ClusteringModel["kChosenBy"],
+    training,
     kmeans: kmeansPart,
     pca: pcaPart,
     dbscan: dbPart,

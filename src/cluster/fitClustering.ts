@@ -174,11 +174,22 @@ export function fitClustering(embedding: Embedding, options: FitClusteringOption
   }
   const med = timed("medoids", () => exactMedoids(X, labels, { progress }));
   warnings.push(...med.warnings);
+  // Weight share per final label, for comparing new recordings with the training ones.
+  const clusterShare = new Float64Array(k);
+  let noiseShare = 0;
+  let total = 0;
+  for (let i = 0; i < n; i++) total += weights ? weights[i]! : 1;
+  for (let i = 0; i < n; i++) {
+    const w = (weights ? weights[i]! : 1) / total;
+    if (labels[i]! < 0) noiseShare += w;
+    else clusterShare[labels[i]!]! += w;
+  }
   const model: ClusteringModel = {
     features: embedding.features.map((f) => f.name),
     standardization: { mean: embedding.mean.slice(), scale: embedding.scale.slice(), weight: embedding.weight.slice() },
     k,
     kChosenBy: sweep ? "silhouette" : "given",
+    training: { rows: n, clusterShare, noiseShare },
     kmeans: kmeansModel(X, km),
     pca: pcaModel,
     dbscan: dbModel,
