@@ -137,7 +137,7 @@ describe("assignScenarios on new scenarios", () => {
 });
 
 describe("a model that does not fit the scenarios", () => {
-  it("rejects scenarios embedded with another tensor length, naming the counts and the features that differ", () => {
+  it("rejects scenarios embedded with another tensor length, naming the counts and the features that differ", async () => {
     const other = embedScenarios(extractRecording(held, { scenario: { steps: 5 } }).set);
     let err: unknown;
     try {
@@ -150,6 +150,11 @@ describe("a model that does not fit the scenarios", () => {
     expect(msg).toContain(`fitted on ${embedding.features.length} features, the scenarios have ${other.features.length}`);
     const missing = embedding.features.map((f) => f.name).find((f) => !other.features.some((g) => g.name === f))!;
     expect(msg).toContain(`"${missing}"`);
+    // The same check on load, when the caller says which features it will pass; the file is named.
+    const path = join(dir, "model-for-10-steps.json");
+    await saveClusteringModel(fit.model, path);
+    await expect(loadClusteringModel(path, other.features.map((f) => f.name))).rejects.toThrow(`${path}: the clustering model does not match`);
+    await expect(loadClusteringModel(path, embedding.features.map((f) => f.name))).resolves.toBeTruthy();
   });
 
   it("rejects a damaged or foreign model file, naming the field", () => {

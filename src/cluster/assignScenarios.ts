@@ -1,9 +1,8 @@
-import { InputError } from "../core/errors.js";
 import type { Matrix } from "../core/matrix.js";
 import { pcaTransform } from "../embed/pca.js";
 import { applyStandardization } from "../embed/scale.js";
 import { assign } from "./assign.js";
-import type { ClusteringModel } from "./clusteringModel.js";
+import { checkModelFeatures, type ClusteringModel } from "./clusteringModel.js";
 
 /** What assignScenarios needs of an embedding: the physical-unit features and their names. */
 export interface EmbeddingFeatures {
@@ -28,31 +27,6 @@ export interface AssignScenariosResult {
    */
   novel: Uint8Array;
   warnings: string[];
-}
-
-/** Throw an InputError naming how the embedding's features differ from the model's. */
-export function checkModelFeatures(model: Pick<ClusteringModel, "features">, names: readonly string[], where?: string): void {
-  const a = model.features;
-  const prefix = where ? `${where}: ` : "";
-  if (a.length === names.length && a.every((f, j) => f === names[j])) return;
-  const inModel = new Set(a);
-  const inEmb = new Set(names);
-  const missing = a.filter((f) => !inEmb.has(f));
-  const extra = names.filter((f) => !inModel.has(f));
-  const parts: string[] = [`the model was fitted on ${a.length} features, the scenarios have ${names.length}`];
-  if (missing.length > 0) parts.push(`missing from the scenarios: ${list(missing)}`);
-  if (extra.length > 0) parts.push(`not in the model: ${list(extra)}`);
-  if (missing.length === 0 && extra.length === 0) {
-    const j = a.findIndex((f, i) => f !== names[i]);
-    parts.push(`same names in another order (column ${j}: "${names[j]}" here, "${a[j]}" in the model)`);
-  }
-  throw new InputError(
-    `${prefix}the clustering model does not match these scenarios — ${parts.join("; ")}. The scenarios must be cut and embedded with the options the model was fitted with (its "extraction" field: the same scenario window and tensor length) by the same feature set; a model from another roadsieve version or other options needs a new plan run`,
-  );
-}
-
-function list(names: string[]): string {
-  return names.slice(0, 5).map((n) => `"${n}"`).join(", ") + (names.length > 5 ? ` and ${names.length - 5} more` : "");
 }
 
 /**

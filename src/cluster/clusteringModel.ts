@@ -77,8 +77,12 @@ export function clusteringModelToJson(model: ClusteringModel): string {
   return JSON.stringify(o) + "\n";
 }
 
-/** Read a model written by clusteringModelToJson; every field is checked and a bad one is named. */
-export function clusteringModelFromJson(text: string, file?: string): ClusteringModel {
+/**
+ * Read a model written by clusteringModelToJson; every field is checked and a bad one is named.
+ * With `expectFeatures` (the embedding's column names) a model fitted on other features is an
+ * InputError saying which names differ.
+ */
+export function clusteringModelFromJson(text: string, file?: string, expectFeatures?: readonly string[]): ClusteringModel {
   let root: unknown;
   try {
     root = JSON.parse(text);
@@ -174,7 +178,33 @@ export function clusteringModelFromJson(text: string, file?: string): Clustering
     extraction: (o.extraction ?? null) as Record<string, unknown> | null,
   };
   if (o.logical !== undefined) model.logical = o.logical;
+  if (expectFeatures) checkModelFeatures(model, expectFeatures, file);
   return model;
+}
+
+/** Throw an InputError naming how the embedding's features differ from the model's. */
+export function checkModelFeatures(model: Pick<ClusteringModel, "features">, names: readonly string[], where?: string): void {
+  const a = model.features;
+  const prefix = where ? `${where}: ` : "";
+  if (a.length === names.length && a.every((f, j) => f === names[j])) return;
+  const inModel = new Set(a);
+  const inEmb = new Set(names);
+  const missing = a.filter((f) => !inEmb.has(f));
+  const extra = names.filter((f) => !inModel.has(f));
+  const parts: string[] = [`the model was fitted on ${a.length} features, the scenarios have ${names.length}`];
+  if (missing.length > 0) parts.push(`missing from the scenarios: ${list(missing)}`);
+  if (extra.length > 0) parts.push(`not in the model: ${list(extra)}`);
+  if (missing.length === 0 && extra.length === 0) {
+    const j = a.findIndex((f, i) => f !== names[i]);
+    parts.push(`same names in another order (column ${j}: "${names[j]}" here, "${a[j]}" in the model)`);
+  }
+  throw new InputError(
+    `${prefix}the clustering model does not match these scenarios — ${parts.join("; ")}. The scenarios must be cut and embedded with the options the model was fitted with (its "extraction" field: the same scenario window and tensor length) by the same feature set; a model from another roadsieve version or other options needs a new plan run`,
+  );
+}
+
+function list(names: string[]): string {
+  return names.slice(0, 5).map((n) => `"${n}"`).join(", ") + (names.length > 5 ? ` and ${names.length - 5} more` : "");
 }
 
 /** Write the model as JSON (atomically). */
@@ -182,13 +212,16 @@ export async function saveClusteringModel(model: ClusteringModel, path: string):
   await writeFileAtomic(path, clusteringModelToJson(model));
 }
 
-/** Read and check a model file (InputError naming the file and the field on any problem). */
-export async function loadClusteringModel(path: string): Promise<ClusteringModel> {
+/**
+ * Read and check a model file (InputError naming the file and the field on any problem; with
+ * `expectFeatures`, also when the model's features differ from these names).
+ */
+export async function loadClusteringModel(path: string, expectFeatures?: readonly string[]): Promise<ClusteringModel> {
   let text: string;
   try {
     text = await readFile(path, "utf8");
   } catch (e) {
     throw new InputError(`cannot read the clustering model: ${(e as NodeJS.ErrnoException).code === "ENOENT" ? "no such file" : (e as Error).message}`, { file: path });
   }
-  return clusteringModelFromJson(text, path);
+  return clusteringModelFromJson(text, path, expectFeatures);
 }

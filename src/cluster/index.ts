@@ -26,7 +26,8 @@ export {
   loadClusteringModel,
   CLUSTERING_MODEL_FORMAT,
   CLUSTERING_MODEL_VERSION,
+  checkModelFeatures,
 } from "./clusteringModel.js";
 export type { ClusteringModel } from "./clusteringModel.js";
-export { assignScenarios, checkModelFeatures } from "./assignScenarios.js";
+export { assignScenarios } from "./assignScenarios.js";
 export type { AssignScenariosResult, EmbeddingFeatures } from "./assignScenarios.js";

@@ -65,7 +65,12 @@ export function extractRecording(
     seconds += s.seconds;
   }
   const recWarnings = [...rec.warnings];
-  for (const tm of m) for (const w of tm.warnings) recWarnings.push(`track ${tm.trackId}: ${w}`);
+  for (const tm of m)
+    for (const w of tm.warnings) {
+      // Maneuver warnings usually name their track already; do not name it twice.
+      const prefix = `track ${tm.trackId}: `;
+      recWarnings.push(w.startsWith(prefix) ? w : prefix + w);
+    }
   for (const w of set.warnings) recWarnings.push(w);
   const summary: RecordingSummary = {
     id: rec.id,

@@ -1,8 +1,8 @@
 import { existsSync, statSync } from "node:fs";
 import { join, resolve } from "node:path";
 import { parseArgs } from "node:util";
-import { assignScenarios, checkModelFeatures } from "../../cluster/assignScenarios.js";
-import { loadClusteringModel } from "../../cluster/clusteringModel.js";
+import { assignScenarios } from "../../cluster/assignScenarios.js";
+import { checkModelFeatures, loadClusteringModel } from "../../cluster/clusteringModel.js";
 import { writeFileAtomic } from "../../core/io.js";
 import type { Progress } from "../../core/progress.js";
 import { embedScenarios } from "../../embed/features.js";
