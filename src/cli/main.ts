@@ -6,6 +6,7 @@
 import { InputError } from "../core/errors.js";
 import { VERSION } from "../core/version.js";
 import type { Command } from "./command.js";
+import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
 import { demoCommand } from "./commands/demo.js";
 import { extractCommand } from "./commands/extract.js";
@@ -14,7 +15,7 @@ import { planCommand } from "./commands/plan.js";
 import { submitCommand, workerCommand } from "./commands/queue.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
