@@ -10,6 +10,12 @@
  *       DIR/vkm-N/tracks.parquet --out DIR/out-N --quiet`: wall time, peak RSS, the plan's own
  *       stage timings; and the exponent b of time ∝ km^b between the smallest and largest size
  *
+ *   npm run bench -- scale choose-k [--vkm 10000] [--dir DIR]
+ *       the k sweep (k = 2..12, 4 restarts, as the pipeline runs it) on the real embedding of the
+ *       generated corpus of that size (extracted once into DIR/shards-N and read back), with the
+ *       previous settings (every fit on all rows, silhouette on 5,000) and the sampled defaults,
+ *       back to back in one process: seconds, chosen k, silhouettes and their standard errors
+ *
  * Heavy steps run one after the other, never at the same time. Last line: one JSON object.
  */
 import { spawnSync } from "node:child_process";
@@ -17,7 +23,14 @@ import { existsSync, mkdirSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join, resolve } from "node:path";
 import { Rng } from "../src/core/rng.js";
+import { sweepK } from "../src/cluster/sweepK.js";
+import { embedScenarios } from "../src/embed/features.js";
+import { scenarioWeights } from "../src/exposure/sampleWeights.js";
 import { ExtractPool } from "../src/extract/extractPool.js";
+import { extractionOptions } from "../src/extract/extractionOptions.js";
+import { mergeScenarioSets } from "../src/pipeline/mergeScenarioSets.js";
+import { manifestName } from "../src/shard/shardNames.js";
+import { readShard } from "../src/shard/readShard.js";
 import { resolvePipelineOptions } from "../src/pipeline/options.js";
 import { generateTraffic, writeGeneratedTraffic } from "../src/synth/index.js";
 
@@ -105,10 +118,50 @@ async function endToEnd(args: string[]): Promise<void> {
   console.log(JSON.stringify({ bench: "scale-end-to-end", rows, exponent }));
 }
 
+async function chooseK(args: string[]): Promise<void> {
+  const vkm = Number(arg(args, "--vkm") ?? 10000);
+  const dir = resolve(arg(args, "--dir") ?? join(tmpdir(), "roadsieve-bench-scale"));
+  const data = join(dir, `vkm-${vkm}`, "tracks.parquet");
+  const cli = resolve("dist/cli/main.js");
+  if (!existsSync(data)) {
+    const g = spawnSync("node", [cli, "generate", "--vehicle-km", String(vkm), "--seed", "7", "--out", join(dir, `vkm-${vkm}`), "--quiet"], { encoding: "utf8" });
+    if (g.status !== 0) throw new Error(`generate failed: ${g.stderr}`);
+  }
+  const shards = join(dir, `shards-${vkm}`);
+  const o = resolvePipelineOptions({});
+  // The recording id of a generated corpus is its folder name.
+  const manifest = join(shards, manifestName(`vkm-${vkm}`));
+  if (!existsSync(manifest)) {
+    const e = spawnSync("node", [cli, "extract", data, "--out", shards, "--quiet"], { encoding: "utf8" });
+    if (e.status !== 0) throw new Error(`extract failed: ${e.stderr}`);
+  }
+  const ex = await readShard(manifest, { options: extractionOptions({}, o) });
+  const set = mergeScenarioSets([ex.set]);
+  const X = embedScenarios(set, o.embedding).matrix;
+  const weights = scenarioWeights(set.scenarios, o.weightBy);
+  const n = X.rows;
+  const kMax = Math.min(o.kRange[1], n - 1);
+  const out: Record<string, unknown> = { bench: "scale-choose-k", vkm, scenarios: n, dims: X.cols };
+  for (const [name, extra] of [
+    ["previous (all rows, silhouette on 5000)", { fitSampleSize: n, silhouetteSampleSize: 5000 }],
+    ["sampled (defaults)", {}],
+  ] as const) {
+    const t0 = performance.now();
+    const r = sweepK(X, { kMin: o.kRange[0], kMax, rng: new Rng(o.seed).fork("sweep"), weights, nInit: o.nInit, ...extra });
+    const seconds = (performance.now() - t0) / 1000;
+    const at = r.rows.find((x) => x.k === r.suggestedK)!;
+    console.log(`${name}: ${seconds.toFixed(1)} s, k = ${r.suggestedK}, silhouette ${at.silhouette.toFixed(4)} ± ${at.silhouetteSe.toFixed(4)} (fit rows ${r.fitSample}, silhouette rows ${r.silhouetteSample} of ${n}) (shared machine)`);
+    console.log(`   silhouette by k: ${r.rows.map((x) => `${x.k}:${x.silhouette.toFixed(3)}`).join(" ")}`);
+    out[name.startsWith("previous") ? "previous" : "sampled"] = { seconds, k: r.suggestedK, silhouette: at.silhouette, se: at.silhouetteSe, fitSample: r.fitSample, silhouetteSample: r.silhouetteSample, byK: r.rows.map((x) => [x.k, x.silhouette, x.silhouetteSe]) };
+  }
+  console.log(JSON.stringify(out));
+}
+
 export async function run(args: string[]): Promise<void> {
   const [mode, ...rest] = args;
+  if (mode === "choose-k") return chooseK(rest);
   if (mode === "throughput") return throughput(rest);
   if (mode === "end-to-end") return endToEnd(rest);
-  console.error("usage: npm run bench -- scale <throughput|end-to-end> [options]");
+  console.error("usage: npm run bench -- scale <throughput|end-to-end|choose-k> [options]");
   process.exitCode = 2;
 }
