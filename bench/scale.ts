@@ -16,6 +16,12 @@
  *       previous settings (every fit on all rows, silhouette on 5,000) and the sampled defaults,
  *       back to back in one process: seconds, chosen k, silhouettes and their standard errors
  *
+ *   npm run bench -- scale streaming-memory [--recordings 10] [--vkm 1000] [--dir DIR]
+ *       peak RSS and wall time of planning many recordings: all read into memory first, then the
+ *       chain on one thread (bench/_allInMemory.ts, as plan worked before), against `plan` with
+ *       streaming extraction on 2 worker threads; both from the sources through tsx, one after the
+ *       other; checks that both wrote the same plan.json
+ *
  * Heavy steps run one after the other, never at the same time. Last line: one JSON object.
  */
 import { spawnSync } from "node:child_process";
@@ -157,11 +163,39 @@ async function chooseK(args: string[]): Promise<void> {
   console.log(JSON.stringify(out));
 }
 
+async function streamingMemory(args: string[]): Promise<void> {
+  const count = Number(arg(args, "--recordings") ?? 10);
+  const vkm = Number(arg(args, "--vkm") ?? 1000);
+  const dir = resolve(arg(args, "--dir") ?? join(tmpdir(), "roadsieve-bench-scale"));
+  const paths: string[] = [];
+  for (let i = 0; i < count; i++) {
+    const id = `stream-${vkm}-${i + 1}`;
+    const p = join(dir, id, "tracks.parquet");
+    if (!existsSync(p)) {
+      console.log(`generating ${id} …`);
+      const t = generateTraffic({ vehicleKm: vkm, recordingId: id }, new Rng(200 + i));
+      await writeGeneratedTraffic(join(dir, id), t, { format: "parquet" });
+    }
+    paths.push(p);
+  }
+  const tsx = ["node", "--import", "tsx"];
+  const before = timeV([...tsx, "bench/_allInMemory.ts", join(dir, "mem-all"), ...paths]);
+  if (before.code !== 0) throw new Error(`all-in-memory run failed: ${before.stderr.slice(-2000)}`);
+  console.log(`all in memory, one thread: ${before.wall.toFixed(1)} s, peak RSS ${Math.round(before.rssMiB)} MiB (shared machine)`);
+  const after = timeV([...tsx, "src/cli/main.ts", "plan", ...paths, "--workers", "2", "--out", join(dir, "mem-stream"), "--no-catalogue", "--quiet"]);
+  if (after.code !== 0) throw new Error(`streaming plan failed: ${after.stderr.slice(-2000)}`);
+  console.log(`streaming, 2 worker threads: ${after.wall.toFixed(1)} s, peak RSS ${Math.round(after.rssMiB)} MiB (shared machine)`);
+  const same = spawnSync("cmp", [join(dir, "mem-all", "plan.json"), join(dir, "mem-stream", "plan.json")]).status === 0;
+  console.log(`same plan.json: ${same}`);
+  console.log(JSON.stringify({ bench: "scale-streaming-memory", recordings: count, vkm, before: { wall: before.wall, rssMiB: Math.round(before.rssMiB) }, after: { wall: after.wall, rssMiB: Math.round(after.rssMiB) }, samePlan: same }));
+}
+
 export async function run(args: string[]): Promise<void> {
   const [mode, ...rest] = args;
+  if (mode === "streaming-memory") return streamingMemory(rest);
   if (mode === "choose-k") return chooseK(rest);
   if (mode === "throughput") return throughput(rest);
   if (mode === "end-to-end") return endToEnd(rest);
-  console.error("usage: npm run bench -- scale <throughput|end-to-end|choose-k> [options]");
+  console.error("usage: npm run bench -- scale <throughput|end-to-end|choose-k|streaming-memory> [options]");
   process.exitCode = 2;
 }
