@@ -15,7 +15,10 @@ import { scenarioWeights } from "../exposure/sampleWeights.js";
 import { detectAllManeuvers } from "../maneuvers/detectAllManeuvers.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
-import type { TestPlan } from "../plan/types.js";
+import { buildPlanDetailed } from "../plan/buildPlan.js";
+import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
+import type { Plan } from "../plan/logicalTypes.js";
+import { measureScenarioParameters } from "../logical/measureScenarioParameters.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
 import type { Recording } from "../recording/types.js";
 import { buildScenarios } from "../scenario/buildScenarios.js";
@@ -61,7 +64,11 @@ export interface PipelineResult {
   medoids: MedoidsResult;
   typeKeys: string[];
   map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
-  plan: TestPlan;
+  /** The plan of logical scenarios (schema 2.0.0); plan.exploration holds the global cluster view. */
+  plan: Plan;
+  /** Logical scenario id per scenario, and the fitted per-class model (standardization, representatives) for assignLogicalScenarios. */
+  logicalScenarioOf: string[];
+  logicalModel: LogicalModel;
   /** Seconds per stage. */
   timings: Record<string, number>;
   warnings: string[];
@@ -99,6 +106,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
     const m = timed("maneuvers", () => detectAllManeuvers(rec, o.maneuvers, progress));
     const scenes = timed("neighbours", () => buildScenes(rec, m, o.scene, progress));
     const set = timed("scenarios", () => buildScenarios(rec, m, scenes, o.scenario, progress));
+    timed("parameters", () => measureScenarioParameters(rec, m, scenes, set, o.measure));
     maneuvers.push(m);
     sets.push(set);
     let rows = 0;
@@ -177,7 +185,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
 
   const inputChecksums: Record<string, string> = {};
   for (const r of summaries) inputChecksums[r.source] = r.checksum;
-  const plan = timed("test plan", () =>
+  const exploration = timed("test plan", () =>
     buildTestPlan(
       {
         scenarios: scenarios.scenarios,
@@ -206,9 +214,11 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
         },
         progress,
       },
-      o.plan,
+      { ...o.plan, budget: undefined },
     ),
   );
+  const detailed = timed("logical scenarios", () => buildPlanDetailed({ scenarios: scenarios.scenarios, exploration, rng: rng.fork("plan") }, o.plan, { ...o.logical, budget: o.logical.budget ?? o.plan.budget }));
+  const plan = detailed.plan;
   warnings.push(...plan.warnings);
   return {
     options: o,
@@ -226,6 +236,8 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
     typeKeys,
     map,
     plan,
+    logicalScenarioOf: detailed.logicalScenarioOf,
+    logicalModel: detailed.model,
     timings,
     warnings,
   };

@@ -4,7 +4,6 @@ import type { Progress } from "../../core/progress.js";
 import type { PipelineOptions } from "../../pipeline/options.js";
 import { runPipeline } from "../../pipeline/runPipeline.js";
 import { writeOutputs } from "../../pipeline/writeOutputs.js";
-import { planSummary } from "../../plan/planSummary.js";
 import { readRecording, type ReadRecordingOptions } from "../../recording/readRecording.js";
 import type { Recording } from "../../recording/types.js";
 import type { Command } from "../command.js";
@@ -117,7 +116,7 @@ export async function planFromFiles(files: string[], readOptions: ReadRecordingO
       progress,
     });
     display.done();
-    process.stdout.write(`${planSummary(result.plan)}\n\n`);
+    process.stdout.write(`${result.plan.summary}\n\n`);
     const t = Object.entries(result.timings)
       .map(([k, s]) => `${k} ${s.toFixed(2)} s`)
       .join(", ");
