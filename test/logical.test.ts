@@ -15,7 +15,11 @@ import { buildScenarios } from "../src/scenario/buildScenarios.js";
 import type { Scenario } from "../src/scenario/types.js";
 import { buildScenes } from "../src/scene/buildScenes.js";
 import { readGroundTruth } from "../src/synth/truthFile.js";
-import { PyWorkspace, sklearnMissing } from "./helpers/sklearn.js";
+import { PYTHON, PyWorkspace, sklearnMissing } from "./helpers/sklearn.js";
+import { spawnSync } from "node:child_process";
+import { writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { tmpdir } from "node:os";
 
 const sampleDir = fileURLToPath(new URL("../sample-data/orrowind/", import.meta.url));
 const rec = await readRecording(`${sampleDir}tracks.parquet`, {});
@@ -233,5 +237,25 @@ print(json.dumps([float(q) for q in np.quantile(np.repeat(v, w), [0.05, 0.5, 0.9
     // The shift moves mass towards the dangerous side: short headways are drawn more often than recorded.
     const p05 = ls.parameters.find((p) => p.name === "thw")!.p05;
     expect(vars.filter((v) => v.values.thw! <= p05).length / N).toBeGreaterThan(0.1);
+  });
+});
+
+describe("plan.json schema 2.0.0", () => {
+  const ok = spawnSync(PYTHON, ["-c", "import jsonschema"]).status === 0;
+  it.skipIf(!ok)(`validates against docs/plan.schema.json (python jsonschema, draft 2020-12), and the validator rejects drift${ok ? "" : " (skipped: no python3-jsonschema)"}`, () => {
+    const schema = fileURLToPath(new URL("../docs/plan.schema.json", import.meta.url));
+    const file = join(tmpdir(), `roadsieve-plan2-${process.pid}.json`);
+    const count = (doc: string): number => {
+      writeFileSync(file, doc);
+      const r = spawnSync(PYTHON, ["-c", "import json,sys,jsonschema; s=json.load(open(sys.argv[1])); jsonschema.Draft202012Validator.check_schema(s); d=json.load(open(sys.argv[2])); print(len(list(jsonschema.Draft202012Validator(s).iter_errors(d))))", schema, file], { encoding: "utf8" });
+      expect(r.status, r.stderr).toBe(0);
+      return Number(r.stdout.trim());
+    };
+    const withImportance = runPipeline([rec], { seed: 1, map: "pca", plan: { budget: 30 }, logical: { importanceShift: 1 } }).plan;
+    for (const p of [base.plan, withImportance]) expect(count(planToJson(p))).toBe(0);
+    const bad = JSON.parse(planToJson(base.plan)) as { testCases: Record<string, unknown>[]; logicalScenarios: Record<string, unknown>[] };
+    bad.testCases[0]!.kind = "rare";
+    bad.logicalScenarios[0]!.classId = "tailgating";
+    expect(count(JSON.stringify(bad))).toBe(2);
   });
 });
