@@ -5,6 +5,7 @@ import { compensatedSum } from "../src/exposure/compensatedSum.js";
 import { fitLogicalScenarios } from "../src/logical/fitLogicalScenarios.js";
 import { measureScenarioParameters } from "../src/logical/measureScenarioParameters.js";
 import { sampleVariations } from "../src/logical/sampleVariations.js";
+import { assignLogicalScenarios, logicalModelFromJSON, logicalModelToJSON } from "../src/logical/assignLogicalScenarios.js";
 import { weightedQuantile } from "../src/logical/stats.js";
 import { detectAllManeuvers } from "../src/maneuvers/detectAllManeuvers.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
@@ -257,5 +258,28 @@ describe("plan.json schema 2.0.0", () => {
     bad.testCases[0]!.kind = "rare";
     bad.logicalScenarios[0]!.classId = "tailgating";
     expect(count(JSON.stringify(bad))).toBe(2);
+  });
+});
+
+describe("assignLogicalScenarios with the fitted model (JSON save / load)", () => {
+  const model = logicalModelFromJSON(logicalModelToJSON(base.logicalModel));
+  it("round-trips the model exactly and files every representative under its own logical scenario, not novel", () => {
+    expect(logicalModelToJSON(model)).toBe(logicalModelToJSON(base.logicalModel));
+    const reps = base.plan.logicalScenarios.map((l) => sc[l.representative.scenarioIndex]!);
+    const a = assignLogicalScenarios(model, reps);
+    a.forEach((x, k) => {
+      expect(x.logicalScenario).toBe(base.plan.logicalScenarios[k]!.id);
+      expect(x.distance).toBe(0);
+      expect(x.novel).toBe(false);
+    });
+    // Every recorded scenario lies within its logical scenario's radius of some representative of its class.
+    const all = assignLogicalScenarios(model, sc);
+    expect(all.filter((x) => x.novel).length).toBe(0);
+  });
+  it("flags a scenario far outside the recorded space as novel, and rejects a broken model file naming the field", () => {
+    const f = sc.find((s) => s.scenarioClass === "following")!;
+    const odd = { ...f, parameters: { ...f.parameters!, egoSpeed: 60, gap: 400, thw: 6.7 } } as Scenario;
+    expect(assignLogicalScenarios(model, [odd])[0]!.novel).toBe(true);
+    expect(() => logicalModelFromJSON(logicalModelToJSON(model).replace('"sd":[', '"sd":[0,'))).toThrow(/field "classes\[\d+\]\.sd" should be/);
   });
 });

@@ -11,3 +11,5 @@ export type { LogicalFit, LogicalFitOptions, ClassFit, FittedLogicalScenario, Lo
 export { sampleVariations, inverseEcdf } from "./sampleVariations.js";
 export type { Variation } from "./sampleVariations.js";
 export { weightedQuantile, normalCdf } from "./stats.js";
+export { assignLogicalScenarios, logicalModelToJSON, logicalModelFromJSON } from "./assignLogicalScenarios.js";
+export type { LogicalAssignment } from "./assignLogicalScenarios.js";

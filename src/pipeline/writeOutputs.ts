@@ -4,6 +4,7 @@ import type { Progress } from "../core/progress.js";
 import { catalogueTables } from "../catalogue/catalogueTables.js";
 import { writeCatalogue } from "../catalogue/writeCatalogue.js";
 import { writePlan } from "../plan/writePlan.js";
+import { logicalModelToJSON } from "../logical/assignLogicalScenarios.js";
 import { buildReport } from "../report/buildReport.js";
 import { renderHtml } from "../report/html.js";
 import type { PipelineResult } from "./runPipeline.js";
@@ -30,6 +31,10 @@ export interface WriteOutputsOptions {
  */
 export async function writeOutputs(r: PipelineResult, dir: string, options: WriteOutputsOptions = {}): Promise<{ files: string[]; warnings: string[] }> {
   const written = await writePlan(r.plan, dir);
+  // The fitted per-class model, so that assignLogicalScenarios can file new recordings later.
+  const modelPath = join(dir, "logical-model.json");
+  await writeFileAtomic(modelPath, logicalModelToJSON(r.logicalModel));
+  written.push(modelPath);
   const warnings: string[] = [];
   options.progress?.({ stage: "report", done: 0, total: 1 });
   const html = renderHtml(buildReport(r, options.title));
