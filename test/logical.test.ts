@@ -51,6 +51,16 @@ describe("critical events on the sample against the generator's ground truth (tr
     expect(matches.filter((m) => m.length === 1).length).toBeGreaterThanOrEqual(26);
   });
 
+  it("explains every other cut-in entry by a cut-in of the same vehicle pair in the generator's truth (truth.cutIns)", () => {
+    // The plan's cut-in rule (THW < 1 s at a cut-in) also catches ordinary cut-ins of the traffic
+    // model; each such entry must be a real cut-in of the ground truth, never a detection ghost.
+    const planted = new Set(matches.flat().map((e) => e.id));
+    const others = plan.criticalEvents.filter((e) => !planted.has(e.id) && e.rules.some((r) => r.includes("cut-in")));
+    expect(others.length).toBeGreaterThan(0);
+    for (const e of others)
+      expect(truth.cutIns.some((c) => e.tracks.includes(c.egoTrack) && e.tracks.includes(c.cutterTrack) && Math.abs(c.t - e.tFrom) < 8), e.id).toBe(true);
+  });
+
   it("files each planted hard braking under a class whose name says braking, each tight cut-in under the cut-in class", () => {
     const byId = new Map(plan.logicalScenarios.map((l) => [l.id, l]));
     truth.planted.forEach((p, k) => {
