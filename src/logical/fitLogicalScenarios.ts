@@ -221,7 +221,8 @@ export function fitLogicalScenarios(scenarios: readonly Scenario[], weights: Flo
     let db: number | null = null;
     const used = new Set(Array.from(labels)).size;
     if (k >= 2 && used >= 2 && m > used) {
-      sil = silhouette(X, labels, { rng: rng.fork(`logical/${cls.id}/silhouette`) }).score;
+      // A seeded sample of 2000 rows keeps the per-class report cheap (the exact score costs O(m²)).
+      sil = silhouette(X, labels, { rng: rng.fork(`logical/${cls.id}/silhouette`), sampleSize: 2000 }).score;
       ch = calinskiHarabasz(X, labels);
       db = daviesBouldin(X, labels);
     }
@@ -234,7 +235,7 @@ export function fitLogicalScenarios(scenarios: readonly Scenario[], weights: Flo
       for (let r = 0; r < m; r++) if (labels[r] === c) rows.push(r);
       if (rows.length === 0) continue;
       const repRow = med[c]!;
-      const ls = describeCluster(scenarios, idx, rows, repRow, raw, w, X, specs, tol, cls.id, o.bins);
+      const ls = describeCluster(scenarios, idx, rows, repRow, raw, w, X, specs, cls.id, o.bins);
       for (const r of rows) labelOf[idx[r]!] = fitted.length;
       let radius = 0;
       for (const r of rows) {
@@ -259,7 +260,6 @@ function describeCluster(
   w: Float64Array,
   X: Matrix,
   specs: readonly ParameterSpec[],
-  tol: number[],
   classId: ScenarioClassId,
   bins: number,
 ): FittedLogicalScenario {
@@ -358,7 +358,6 @@ function describeCluster(
     .map((x) => `${x.p.name} ${sig(x.v!)} ${x.p.unit}`);
   const ego = raw[repRow]![0];
   const name = `${cls.name}${ego !== null && ego !== undefined ? `, ego ${sig(ego)} m/s` : ""}${shown.length > 0 ? `, ${shown.join(", ")}` : ""}`;
-  void tol;
   return {
     id,
     classId,

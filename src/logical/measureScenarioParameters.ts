@@ -136,13 +136,13 @@ function measureOne(c: Ctx, s: Scenario, k: number): void {
   if (s.seconds < c.o.minWindowSeconds || trackSeconds < c.o.minTrackSeconds) cls = "other";
   else if (cutIn) {
     cls = "cut-in";
-    measureCutIn(c, s, k, cutIn, p);
+    measureCutIn(c, k, cutIn, p);
   } else if (brakePeak >= 0) {
     cls = "leader-braking";
     measureLeaderBraking(c, k, a, e, brakePeak, p);
   } else if (cutOut) {
     cls = "cut-out";
-    measureCutOut(c, k, e, cutOut, p);
+    measureCutOut(c, k, cutOut, p);
   } else if (egoLc) {
     cls = egoLc.maneuver === "lane-change-left" ? "lane-change-left" : "lane-change-right";
     measureLaneChange(c, k, a, egoLc, p);
@@ -191,7 +191,7 @@ function measureOne(c: Ctx, s: Scenario, k: number): void {
   };
 }
 
-function measureCutIn(c: Ctx, s: Scenario, k: number, ev: SceneEvent, p: Record<string, number | null>): void {
+function measureCutIn(c: Ctx, k: number, ev: SceneEvent, p: Record<string, number | null>): void {
   const m = c.man[k]!;
   const f = ev.frame;
   const ve = m.motion.vx[f]!;
@@ -209,7 +209,6 @@ function measureCutIn(c: Ctx, s: Scenario, k: number, ev: SceneEvent, p: Record<
     p.cutterLateralSpeed = val(Math.abs(seg.laneChange!.peakLateralSpeed));
     p.laneChangeDuration = val(seg.duration);
   }
-  void s;
 }
 
 /** The lane-change segment of a track whose crossing is nearest to t (within its own span). */
@@ -260,7 +259,7 @@ function measureLeaderBraking(c: Ctx, k: number, a: number, e: number, peak: num
   p.minThw = val(minThw);
 }
 
-function measureCutOut(c: Ctx, k: number, e: number, ev: SceneEvent, p: Record<string, number | null>): void {
+function measureCutOut(c: Ctx, k: number, ev: SceneEvent, p: Record<string, number | null>): void {
   const tr = c.rec.tracks[k]!;
   const m = c.man[k]!;
   const scene = c.scenes[k]!;
@@ -279,7 +278,6 @@ function measureCutOut(c: Ctx, k: number, e: number, ev: SceneEvent, p: Record<s
       break;
     }
   }
-  void e;
 }
 
 function measureLaneChange(c: Ctx, k: number, a: number, seg: ManeuverSegment, p: Record<string, number | null>): void {
