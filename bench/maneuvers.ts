@@ -15,7 +15,8 @@
  *   --sample the clean accelerations come from regenerating the sample in memory;
  * - laneChangePrecision / laneChangeRecall: one-to-one matches of lane-change segments with true lane
  *   changes (same track and direction, crossings within 1 s); true lane changes whose crossing lies
- *   outside the recorded span cannot be observed and are left out of both;
+ *   outside the recorded span cannot be observed and are left out of recall, but a detection matching
+ *   one (its crossing a frame before the track ends) is not counted as false;
  * - boundaryErrorMedianS: median |error| of start and end over matched lane changes lying wholly
  *   inside their track's span;
  * - cutInPrecision / cutInRecall: cut-in events matched on (ego, cutter) with times within 1 s;
@@ -154,7 +155,18 @@ export function scoreManeuvers(rec: Recording, truth: GroundTruth, man: TrackMan
     matched++;
     if (!lc.partial) boundary.push(Math.abs(best.tStart - lc.tStart), Math.abs(best.tEnd - lc.tEnd));
   }
-  // Detections whose crossing matches an unobservable truth cannot exist (no crossing observed), so precision counts all.
+  // A detection may also belong to a true lane change whose crossing lies just outside the recorded
+  // span (the smoothed centre reaches the marking a frame early at the track's end): such a detection
+  // is no false one, though the truth is not counted for recall.
+  const unobservable = truth.laneChanges.filter((lc) => !observable.includes(lc));
+  let nearEdge = 0;
+  for (const d of dets) {
+    if (d.used) continue;
+    if (unobservable.some((lc) => lc.trackId === d.track && lc.direction === d.dir && Math.abs(d.tCross - lc.tCross) <= 1)) {
+      d.used = true;
+      nearEdge++;
+    }
+  }
   // Cut-ins.
   type Cut = { ego: number; other: number; t: number; used: boolean };
   const cuts: Cut[] = [];
@@ -169,7 +181,7 @@ export function scoreManeuvers(rec: Recording, truth: GroundTruth, man: TrackMan
   }
   return {
     lateralFrameAccuracy: latOk / frames,
-    laneChangePrecision: dets.length ? matched / dets.length : 1,
+    laneChangePrecision: dets.length ? (matched + nearEdge) / dets.length : 1,
     laneChangeRecall: observable.length ? matched / observable.length : 1,
     boundaryErrorMedianS: median(boundary),
     longitudinalFrameAccuracy: lonOk / frames,
@@ -273,6 +285,11 @@ export function scoreLaneChangeCases(rec: Recording, truth: GroundTruth, man: Tr
     if (lc.partial) add("partial", hit, lc);
     if (kind === "truck") add("truck", hit, lc);
   }
+  const obsSet = new Set(obs);
+  for (const lc of truth.laneChanges) {
+    if (obsSet.has(lc)) continue;
+    for (const d of detByTrack.get(lc.trackId) ?? []) if (!d.used && d.dir === lc.direction && Math.abs(d.tCross - lc.tCross) <= 1) d.used = true;
+  }
   const riders = new Set(truth.markingRiders ?? []);
   let riderFalse = 0;
   for (const id of riders) riderFalse += (detByTrack.get(id) ?? []).length;
@@ -348,7 +365,13 @@ export async function run(args: string[]): Promise<void> {
   const tEmb = performance.now() - t0;
   const s = scoreManeuvers(rec, truth, man, scenes);
   const lonInstantaneous = longitudinalAccuracy(rec, man, instantaneousLabels(clean));
-  const lonIndependent = longitudinalAccuracy(rec, man, independentLabels(clean));
+  // Against the independent definition the detector runs at that definition's level (keepAccel 0.3,
+  // no hysteresis; every other option at its default: 3 s window, 1 s minimum phase), chosen on seed 1
+  // of the extended generator; with the defaults (0.25, hysteresis 0.1) it is reported beside.
+  const indepLabels = independentLabels(clean);
+  const lonIndependentDefaults = longitudinalAccuracy(rec, man, indepLabels);
+  const manIndep = detectAllManeuvers(rec, { keepAccel: INDEPENDENT_LONGITUDINAL.threshold, hysteresis: 0 });
+  const lonIndependent = longitudinalAccuracy(rec, manIndep, indepLabels);
   const cases = scoreLaneChangeCases(rec, truth, man);
   console.log(
     `${label}; ${vehicleKm.toFixed(1)} vehicle-km, ${rows} rows, ${rec.tracks.length} tracks; ` +
@@ -376,6 +399,7 @@ export async function run(args: string[]): Promise<void> {
       longitudinalFrameAccuracy: round(s.longitudinalFrameAccuracy),
       longitudinalFrameAccuracyInstantaneous: round(lonInstantaneous),
       longitudinalFrameAccuracyIndependent: round(lonIndependent),
+      longitudinalFrameAccuracyIndependentDetectorDefaults: round(lonIndependentDefaults),
       variety: args.includes("--variety"),
       cases: caseJson,
       riderTracks: cases.riderTracks,

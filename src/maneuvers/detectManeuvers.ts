@@ -61,7 +61,7 @@ export function detectWithResolved(track: Track, o: ResolvedManeuverOptions): Tr
     holdEdges(motion.ax, s, e, windowSamples(o.accelWindowS, dt, o.order));
     debounceLanes(lane, s, e, Math.max(1, Math.round(o.minLaneHoldS * perS)));
     if (o.crossingRule === "lasting" && o.laneMarkings)
-      enforceLastingCrossings(lane, motion.y, motion.vy, s, e, {
+      enforceLastingCrossings(lane, track.t, motion.y, motion.vy, s, e, {
         markings: o.laneMarkings,
         minExcursion: o.minExcursion,
         minDwellSamples: Math.max(1, Math.round(o.minDwellS * perS)),

@@ -8,7 +8,7 @@ export interface LastingCrossingRule {
   minDwellSamples: number;
   /**
    * For an episode cut by the start or end of the run (whose excursion may not be observed yet): the
-   * lateral speed towards it at the crossing (m/s) above which the crossing still counts.
+   * mean lateral speed across the marking over that episode (m/s) from which the crossing still counts.
    */
   minCrossingSpeed: number;
 }
@@ -27,14 +27,17 @@ interface Run {
  * - it lies between two episodes in lane P (the vehicle came back across m) and the centre got less
  *   than `minExcursion` past m, or stayed fewer than `minDwellSamples` samples;
  * - it is the first or last episode of the run (its other side is not observed), the centre got less
- *   than `minExcursion` past m and the lateral speed across m at the crossing is below
- *   `minCrossingSpeed` (a real lane change cut by the track's end is still moving across).
+ *   than `minExcursion` past m and its mean lateral speed across m over the episode (from the
+ *   episode's first sample to the crossing, or from the crossing to its last) is below
+ *   `minCrossingSpeed`: a lane change cut by the track's start or end moves across all the time,
+ *   while a vehicle that rides the marking and then drifts off it spends that episode standing.
  * Episodes between two different lanes (passing through a lane in a double lane change) and episodes
  * next to "outside all lanes" (-1) are never weak. Weak episodes are merged into their neighbour's
  * lane, the one with the smallest excursion first, until none is left. Returns the number removed.
  */
 export function enforceLastingCrossings(
   lane: Int32Array,
+  t: Float64Array,
   y: Float64Array,
   vy: Float64Array,
   s: number,
@@ -47,7 +50,7 @@ export function enforceLastingCrossings(
     let worst = -1;
     let worstExc = Infinity;
     for (let r = 0; r < runs.length; r++) {
-      const exc = weakness(runs, r, y, vy, rule);
+      const exc = weakness(runs, r, t, y, vy, rule);
       if (exc !== undefined && exc < worstExc) {
         worstExc = exc;
         worst = r;
@@ -63,7 +66,7 @@ export function enforceLastingCrossings(
 }
 
 /** The excursion of run r when it is weak, else undefined. */
-function weakness(runs: Run[], r: number, y: Float64Array, vy: Float64Array, rule: LastingCrossingRule): number | undefined {
+function weakness(runs: Run[], r: number, t: Float64Array, y: Float64Array, vy: Float64Array, rule: LastingCrossingRule): number | undefined {
   const run = runs[r]!;
   if (run.lane < 0) return undefined;
   const prev = r > 0 ? runs[r - 1]! : undefined;
@@ -80,11 +83,14 @@ function weakness(runs: Run[], r: number, y: Float64Array, vy: Float64Array, rul
   if (Math.abs(other.lane - run.lane) !== 1) return undefined;
   const exc = excursion(run, other.lane, y, rule.markings);
   if (exc === undefined || exc >= rule.minExcursion) return undefined;
-  // Lateral speed in the direction of the crossing at the crossing sample (the first sample of the
-  // later run): into this run when it is the last one, out of it when it is the first.
+  // Mean lateral speed in the direction of the crossing over the episode: into this run when it is
+  // the last one (crossing .. last sample), out of it when it is the first (first sample .. crossing).
   const dir = (prev ? run.lane - other.lane : other.lane - run.lane) > 0 ? 1 : -1;
-  const c = prev ? run.a : other.a;
-  return dir * vy[c]! < rule.minCrossingSpeed ? exc : undefined;
+  const i0 = prev ? run.a - 1 : run.a;
+  const i1 = prev ? run.b - 1 : run.b;
+  const span = t[i1]! - t[i0]!;
+  const speed = span > 0 ? (dir * (y[i1]! - y[i0]!)) / span : dir * vy[prev ? run.a : other.a]!;
+  return speed < rule.minCrossingSpeed ? exc : undefined;
 }
 
 /** Largest distance (m) of the centre past the marking between `from` and the run's lane. */

@@ -49,7 +49,7 @@ export interface ManeuverOptions {
    * Which marking crossings count. "lasting" (default): an episode in the new lane must take the
    * centre at least `minExcursion` past the marking, and when the vehicle comes back across the same
    * marking it must have stayed `minDwellS`; an episode cut by the run's start or end with less
-   * excursion counts only while the vehicle moves across at `minCrossingSpeed` or more. "touch": only
+   * excursion counts only when the vehicle moves across at `minCrossingSpeed` or more on average over it. "touch": only
    * the `minLaneHoldS` rule (the behaviour before issue 11: a vehicle riding on a marking gives a
    * lane change at every flip that outlasts it).
    */
@@ -58,7 +58,7 @@ export interface ManeuverOptions {
   minExcursion?: number;
   /** Lasting crossing: minimum stay in the new lane before coming back across the same marking (s). Default 1.0. */
   minDwellS?: number;
-  /** Lasting crossing: lateral speed at the crossing that keeps an episode cut by the run's end (m/s). Default 0.2. */
+  /** Lasting crossing: mean lateral speed across the marking that keeps an episode cut by the run's start or end (m/s). Default 0.2. */
   minCrossingSpeed?: number;
   /** Lane changes shorter than this are flagged or rejected (s). Default 1.0. */
   minLaneChangeS?: number;
