@@ -111,7 +111,7 @@ export interface TrafficOptions {
   sinusoidalDurationSd: number;
   /** Probability that a lane change is followed, after a short pause, by a second one in the same direction, 0..1. */
   doubleLaneChangeShare: number;
-  /** Pause between the two changes of a double lane change: uniform in [0, this] (s). */
+  /** Pause between the two changes of a double lane change: uniform in [0, this] (s); while the target lane has no room the second waits up to 3 s more, then is dropped. */
   doubleLaneChangePauseMax: number;
   /** Share of cars that drift onto a lane marking, ride it for a while and drift back, never changing lane, 0..1. */
   markingRiderShare: number;

@@ -580,7 +580,7 @@ export class Simulator {
       if (u.lcTo >= 0) continue;
       if (u.secondTo >= 0 && u.secondAtMs >= 0 && t >= u.secondAtMs) {
         const to = u.secondTo;
-        if (this.roomIn(u, to)) {
+        if (Math.abs(to - u.lane) === 1 && this.roomIn(u, to)) {
           const first = this.laneChanges[u.lcIndex];
           const shape = first ? first.shape : 0;
           const [durMs] = this.drawLaneChange(u);
@@ -626,6 +626,9 @@ export class Simulator {
   private startLaneChange(u: Vehicle, to: number, durMs: number, t: number, shape: ShapeCode = 0): LaneChangeLog {
     const w = this.o.laneWidth;
     const from = u.lane;
+    // Any new lane change ends a pending second change of a double lane change.
+    u.secondTo = -1;
+    u.secondAtMs = -1;
     u.lcFrom = from;
     u.lcTo = to;
     u.lcStartMs = t;
