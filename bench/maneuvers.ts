@@ -4,6 +4,7 @@
  *   npm run bench -- maneuvers [--seed N] [--km K] [--noise SD]
  *   npm run bench -- maneuvers --sample      (the bundled sample-data/orrowind, read from Parquet)
  *   npm run bench -- maneuvers --variety [--seed N] [--km K]   (the extended generator of issue 11)
+ *   … [--boundary auto|profile|threshold] [--crossing-rule lasting|touch]   (detector's lateral rules)
  *
  * Generates traffic on the fictional Orrowind Motorway with position noise (default 0.1 m), keeps the
  * noisy positions only (velocity, acceleration and lane columns are re-derived through kinematics/, as
@@ -348,7 +349,18 @@ export async function run(args: string[]): Promise<void> {
   const vehicleKm = rec.tracks.reduce((s, tr) => s + (tr.t.length > 1 ? tr.x[tr.x.length - 1]! - tr.x[0]! : 0), 0) / 1000;
   const d = truth.definitions;
   t0 = performance.now();
+  // --boundary and --crossing-rule select the detector's lateral rules (the previous behaviour:
+  // --boundary profile --crossing-rule touch).
+  const pick = (name: string): string | undefined => {
+    const i = args.indexOf(`--${name}`);
+    return i >= 0 ? args[i + 1] : undefined;
+  };
+  const lateralRules = {
+    boundary: pick("boundary") as "auto" | "profile" | "threshold" | undefined,
+    crossingRule: pick("crossing-rule") as "lasting" | "touch" | undefined,
+  };
   const man = detectAllManeuvers(rec, {
+    ...lateralRules,
     keepAccel: d.lonEnterThreshold,
     hysteresis: d.lonEnterThreshold! - d.lonExitThreshold!,
     minLongitudinalS: d.lonMinDuration,
@@ -401,6 +413,8 @@ export async function run(args: string[]): Promise<void> {
       longitudinalFrameAccuracyIndependent: round(lonIndependent),
       longitudinalFrameAccuracyIndependentDetectorDefaults: round(lonIndependentDefaults),
       variety: args.includes("--variety"),
+      boundary: lateralRules.boundary ?? "auto",
+      crossingRule: lateralRules.crossingRule ?? "lasting",
       cases: caseJson,
       riderTracks: cases.riderTracks,
       riderFalseLaneChanges: cases.riderFalseLaneChanges,
