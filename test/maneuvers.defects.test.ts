@@ -89,13 +89,23 @@ describe("issue 11, defect 3: a vehicle riding on a marking", () => {
   it("gave false lane changes under the old rule (crossingRule: touch), which the option keeps", () => {
     expect(laneChanges(detectManeuvers(buildTrack(spec), { ...opts, crossingRule: "touch" })).length).toBeGreaterThan(3);
   });
-  it("still finds a real lane change next to a marking ride", () => {
-    const ride: TrackSpec = { ...spec, id: 121, lateral: (t) => (t < 30 ? 1.875 + 0.2 * Math.sin((2 * Math.PI * t) / 7) : 0), moves: [{ t0: 30, duration: 5, d: -1.875 }] };
-    const lcs = laneChanges(detectManeuvers(buildTrack(ride), opts));
-    // The ride ends in lane 0's centre 1.875 m from the marking: the last crossing of the marking is
-    // the lasting one; it is a move to the right that starts on the marking.
-    expect(lcs.length).toBeLessThanOrEqual(1);
-    for (const g of lcs) expect(g.maneuver).toBe("lane-change-right");
+  it("gives none when the rider drifts off the marking into its lane, and finds a real lane change after it", () => {
+    // Ride until 28 s (sin(2π·28/7) = 0, so the ride ends on the marking), drift 1.875 m right into
+    // lane 0's centre over 3 s, then a full 5 s lane change 0 → 1 from 40 s (crossing at 42.5 s).
+    const ride: TrackSpec = {
+      id: 121,
+      duration: 60,
+      v0: 30,
+      lane0: 0,
+      lateral: (t) => 1.875 + (t < 28 ? 0.2 * Math.sin((2 * Math.PI * t) / 7) : 0),
+      moves: [{ t0: 28, duration: 3, d: -1.875 }],
+      noiseSd: 0.1,
+    };
+    expect(laneChanges(detectManeuvers(buildTrack(ride), opts))).toEqual([]);
+    const both: TrackSpec = { ...ride, id: 122, moves: [...ride.moves!, { t0: 40, duration: 5, d: 3.75 }] };
+    const lcs = laneChanges(detectManeuvers(buildTrack(both), opts));
+    expect(lcs.map((g) => [g.maneuver, g.laneChange!.fromLane, g.laneChange!.toLane])).toEqual([["lane-change-left", 0, 1]]);
+    expect(Math.abs(lcs[0]!.laneChange!.tCross - 42.5)).toBeLessThanOrEqual(0.1);
   });
 });
 
