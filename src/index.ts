@@ -24,3 +24,4 @@ export * from "./shard/index.js";
 export * from "./extract/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";
+export * from "./logical/index.js";

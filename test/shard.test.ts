@@ -9,7 +9,7 @@ import { extractFiles } from "../src/extract/extractFiles.js";
 import { extractRecording } from "../src/pipeline/extractRecording.js";
 import { resolvePipelineOptions } from "../src/pipeline/options.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
-import { testPlanToJson } from "../src/plan/planJson.js";
+import { planToJson } from "../src/plan/writePlan.js";
 import { readRecording } from "../src/recording/readRecording.js";
 import { sqlString, withDuckDB } from "../src/recording/duckdb.js";
 import { compactManeuvers } from "../src/shard/compactManeuvers.js";
@@ -131,7 +131,7 @@ describe("plan from recordings, from shards, on 1 or 2 workers", () => {
   it("gives byte-identical plan.json, equal to runPipeline in one process", async () => {
     const recs = [];
     for (const t of tracks) recs.push(await readRecording(t));
-    const reference = testPlanToJson(runPipeline(recs, {}).plan);
+    const reference = planToJson(runPipeline(recs, {}).plan);
     const w1 = cli(["plan", ...tracks, "--workers", "1", "--out", join(dir, "p1"), "--no-catalogue", "--quiet"]);
     expect(w1.code, w1.stderr).toBe(0);
     const w2 = cli(["plan", ...tracks, "--workers", "2", "--out", join(dir, "p2"), "--no-catalogue", "--quiet"]);

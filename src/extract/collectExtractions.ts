@@ -3,7 +3,7 @@ import type { ExtractedRecording } from "../pipeline/extractRecording.js";
 import type { ResolvedPipelineOptions } from "../pipeline/options.js";
 import type { ReadRecordingOptions } from "../recording/readRecording.js";
 import type { RejectedTrack } from "../recording/types.js";
-import type { PlanInput } from "../shard/planInputs.js";
+import type { PlanSource } from "../shard/planInputs.js";
 import { readShard } from "../shard/readShard.js";
 import { extractFiles } from "./extractFiles.js";
 import { extractionOptions, portableReadOptions } from "./extractionOptions.js";
@@ -15,7 +15,7 @@ import { extractionOptions, portableReadOptions } from "./extractionOptions.js";
  * next is read in the same thread.
  */
 export async function collectExtractions(
-  inputs: readonly PlanInput[],
+  inputs: readonly PlanSource[],
   read: ReadRecordingOptions,
   options: ResolvedPipelineOptions,
   opts: { workers?: number; progress?: Progress; onRejected?: (source: string, rejected: RejectedTrack[]) => void } = {},

@@ -9,7 +9,7 @@ export type PortableReadOptions = Omit<ReadRecordingOptions, "progress">;
  * option (maneuvers, scene, scenario, and whatever later work adds) counts as an extraction option,
  * so a new option is on the safe side: shards made with another value are refused, not mixed.
  */
-const PLANNING_KEYS = new Set(["seed", "k", "kRange", "nInit", "dbscan", "map", "weightBy", "plan", "embedding"]);
+const PLANNING_KEYS = new Set(["seed", "k", "kRange", "nInit", "dbscan", "map", "weightBy", "plan", "embedding", "logical"]);
 
 /**
  * The options that shape one recording's extraction: how it is read, and the resolved stage options

@@ -7,5 +7,5 @@ export type { ShardManifest, ShardFile } from "./types.js";
 export { encodeValue, decodeValue, canonicalJson } from "./encodeValue.js";
 export { compactManeuvers } from "./compactManeuvers.js";
 export { planInputs, failedJobs, EXPECTED_FILE, FAILED_DIR } from "./planInputs.js";
-export type { PlanInput, ExpectedShards, FailedJob } from "./planInputs.js";
+export type { PlanSource, ExpectedShards, FailedJob } from "./planInputs.js";
 export { manifestName, safeName, MANIFEST_SUFFIX } from "./shardNames.js";

@@ -10,7 +10,7 @@ export const EXPECTED_FILE = "expected.json";
 export const FAILED_DIR = "failed";
 
 /** One input of a plan: a tracks file to extract, or a shard already extracted. */
-export type PlanInput = { kind: "tracks"; path: string } | { kind: "shard"; manifest: string };
+export type PlanSource = { kind: "tracks"; path: string } | { kind: "shard"; manifest: string };
 
 /** `expected.json`: the recordings a shard folder should hold, in plan order. */
 export interface ExpectedShards {
@@ -31,8 +31,8 @@ export interface FailedJob {
  * `allowIncomplete`: otherwise the InputError names each missing recording and, when its job
  * failed for good, the reason.
  */
-export async function planInputs(args: readonly string[], opts: { allowIncomplete?: boolean } = {}): Promise<{ inputs: PlanInput[]; warnings: string[] }> {
-  const inputs: PlanInput[] = [];
+export async function planInputs(args: readonly string[], opts: { allowIncomplete?: boolean } = {}): Promise<{ inputs: PlanSource[]; warnings: string[] }> {
+  const inputs: PlanSource[] = [];
   const warnings: string[] = [];
   for (const a of args) {
     const st = await stat(a).catch(() => null);
@@ -46,7 +46,7 @@ export async function planInputs(args: readonly string[], opts: { allowIncomplet
   return { inputs, warnings };
 }
 
-async function shardFolder(dir: string, allowIncomplete: boolean): Promise<{ inputs: PlanInput[]; warnings: string[] }> {
+async function shardFolder(dir: string, allowIncomplete: boolean): Promise<{ inputs: PlanSource[]; warnings: string[] }> {
   const names = (await readdir(dir)).filter((n) => isManifestPath(n)).sort();
   const bySource = new Map<string, string>();
   for (const n of names) {
@@ -68,7 +68,7 @@ async function shardFolder(dir: string, allowIncomplete: boolean): Promise<{ inp
     throw new InputError(`cannot read the list of expected recordings: ${(e as Error).message}`, { file: expectedPath });
   }
   const failed = await failedJobs(dir);
-  const inputs: PlanInput[] = [];
+  const inputs: PlanSource[] = [];
   const missing: string[] = [];
   for (const r of expected.recordings) {
     const m = bySource.get(r.source);
