@@ -1,4 +1,4 @@
-import { Worker } from "bullmq";
+import { Worker, type Job } from "bullmq";
 import { ExtractPool, type ShardReply } from "../extract/extractPool.js";
 import { JOB_ATTEMPTS, type ExtractJobData } from "./extractJob.js";
 import { checkQueueReachable, queueUrl, redisClient, type QueueAddress } from "./queueAddress.js";
@@ -20,6 +20,8 @@ export interface RunWorkerOptions {
 export interface RunningWorker {
   stop(): Promise<void>;
   stopped: Promise<void>;
+  /** Jobs being processed right now. */
+  activeJobs(): number;
 }
 
 /**
@@ -35,19 +37,28 @@ export async function runWorker(a: QueueAddress, options: RunWorkerOptions = {})
   const lockMs = Math.round((options.lockSeconds ?? 30) * 1000);
   const log = options.log ?? (() => {});
   const pool = new ExtractPool(concurrency);
+  let active = 0;
   const connection = redisClient(a);
   connection.on("error", (e) => log(`queue connection: ${e.message}`));
   const worker = new Worker<ExtractJobData, ShardReply["shard"]>(
     a.name,
     async (job) => {
-      const d = job.data;
-      log(`start ${d.source} (attempt ${job.attemptsMade + 1} of ${job.opts.attempts ?? JOB_ATTEMPTS})`);
-      const r = await pool.extractToShard(d.source, d.read, d.options, d.shardDir, d.manifestOptions);
-      log(`${r.shard.status === "written" ? "wrote" : "already there"} ${r.shard.manifest}`);
-      return r.shard;
+      active++;
+      try {
+        return await processJob(job);
+      } finally {
+        active--;
+      }
     },
     { connection, concurrency, lockDuration: lockMs, stalledInterval: lockMs, maxStalledCount: 2 },
   );
+  async function processJob(job: Job<ExtractJobData>): Promise<ShardReply["shard"]> {
+    const d = job.data;
+    log(`start ${d.source} (attempt ${job.attemptsMade + 1} of ${job.opts.attempts ?? JOB_ATTEMPTS})`);
+    const r = await pool.extractToShard(d.source, d.read, d.options, d.shardDir, d.manifestOptions);
+    log(`${r.shard.status === "written" ? "wrote" : "already there"} ${r.shard.manifest}`);
+    return r.shard;
+  }
   worker.on("failed", (job, err) => {
     if (!job) return;
     const attempts = job.opts.attempts ?? JOB_ATTEMPTS;
@@ -68,5 +79,5 @@ export async function runWorker(a: QueueAddress, options: RunWorkerOptions = {})
       connection.disconnect();
       resolveStopped();
     })());
-  return { stop, stopped };
+  return { stop, stopped, activeJobs: () => active };
 }

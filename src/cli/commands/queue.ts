@@ -74,7 +74,8 @@ export const submitCommand: Command = {
 const WORKER_HELP = `roadsieve worker [options]
 
 Take extraction jobs from the queue (see roadsieve submit) and write each recording's shard into
-the job's shard folder, until stopped (SIGTERM or Ctrl-C finish the current job first). Start one
+the job's shard folder, until stopped (SIGTERM or Ctrl-C finish the current job first; a second
+signal stops at once). Start one
 per core on as many machines as you like; a worker that dies mid-job loses the job to the others
 after --lock-seconds. Each shard is committed exactly once. Exit 2 when the queue cannot be reached.
 
@@ -99,12 +100,29 @@ export const workerCommand: Command = {
     const concurrency = numberOption("concurrency", values.concurrency, { integer: true, min: 1 }) ?? 1;
     const lockSeconds = numberOption("lock-seconds", values["lock-seconds"], { min: 0.5 }) ?? 30;
     const w = await runWorker(a, { concurrency, lockSeconds, log: (line) => process.stdout.write(`${line}\n`) });
+    let signals = 0;
     const onSignal = (): void => {
+      signals++;
+      if (signals > 1) {
+        process.stdout.write("second signal: stopping now\n");
+        process.exit(130);
+      }
       process.stdout.write("stopping after the current job\n");
       void w.stop();
+      // Closing waits for the current jobs and then for the queue; when the queue has gone away
+      // that second wait never ends, so once no job is running, allow 10 s and then stop anyway.
+      let idleSince: number | null = null;
+      setInterval(() => {
+        if (w.activeJobs() > 0) return;
+        idleSince ??= Date.now();
+        if (Date.now() - idleSince > 10_000) {
+          process.stdout.write("could not close the queue connection within 10 s (is the queue still reachable?); stopping now\n");
+          process.exit(1);
+        }
+      }, 500).unref();
     };
-    process.once("SIGTERM", onSignal);
-    process.once("SIGINT", onSignal);
+    process.on("SIGTERM", onSignal);
+    process.on("SIGINT", onSignal);
     await w.stopped;
     process.stdout.write("stopped\n");
     return 0;
