@@ -22,5 +22,3 @@ export { planSummary, composeSummary, PLAN_CAUTIONS, formatPercent, formatQuanti
 export { testPlanToJson } from "./planJson.js";
 export { testPlanToCsv, PLAN_CSV_COLUMNS } from "./planCsv.js";
 export { writeTestPlan } from "./writeTestPlan.js";
-export { openScenarioXml, writeOpenScenarioFiles } from "./openScenario.js";
-export type { OpenScenarioOptions, OpenScenarioResult } from "./openScenario.js";

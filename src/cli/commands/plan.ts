@@ -54,7 +54,8 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
                        own: DBSCAN noise, type keys seen once                  (default: noise+types)
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
-  --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
+  --openscenario       also write one ASAM OpenSCENARIO 1.2 file per test case and an ASAM
+                       OpenDRIVE 1.6 road per recording to DIR/openscenario/ (docs/openscenario.md)
   --quiet              no progress display`;
 
 type PipelineCliValues = { [K in keyof typeof PIPELINE_CLI_OPTIONS]?: (typeof PIPELINE_CLI_OPTIONS)[K]["type"] extends "boolean" ? boolean : string };
