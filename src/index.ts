@@ -20,6 +20,7 @@ export * from "./exposure/index.js";
 export * from "./coverage/index.js";
 export * from "./plan/index.js";
 export * from "./exports/index.js";
+export * from "./resim/index.js";
 export * from "./pipeline/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";

@@ -58,9 +58,9 @@ describe("concrete OpenSCENARIO export", () => {
     expect(r.xml).toContain('revMajor="1" revMinor="2"');
     expect(r.xml).toContain('<LogicFile filepath="road.xodr"/>');
     expect(concreteScenarioXml({ scenario, tracks, frameRate: 25, roadFile: "road.xodr", name: "TC-0001" }).xml).toBe(r.xml);
-    // t2 enters at 4 s = 2 s into the window; t3's last sample is at 6 s, so it is gone from 4.04 s on.
-    expect(r.presence.t2).toEqual({ enter: 2, leave: null });
-    expect(r.presence.t3).toEqual({ enter: null, leave: 4.04 });
+    // With the 1 s lead-in the file starts at 1 s: t2 enters at 4 s = 3 s simulation time; t3's last sample is at 6 s, so it is gone from 5.04 s on.
+    expect(r.presence.t2).toEqual({ enter: 3, leave: null });
+    expect(r.presence.t3).toEqual({ enter: null, leave: 5.04 });
   });
 
   it("validates against the official ASAM OpenSCENARIO 1.2 and OpenDRIVE 1.6.1 XSDs (shipped in standards/)", () => {
@@ -116,7 +116,11 @@ describe("concrete OpenSCENARIO export", () => {
     expect(t2.t[0]).toBeCloseTo(4, 9);
     expect(t2.x[0]).toBeCloseTo(-30 + 36 * 4, 1);
     expect(t3.t[t3.t.length - 1]).toBeCloseTo(6, 9);
-    expect(run.recording.tracks.find((x) => x.id === 1)!.t.length).toBe(201);
+    // The ego: 1 s lead-in + 8 s window + 1 s run-out at 25 Hz.
+    expect(run.recording.tracks.find((x) => x.id === 1)!.t.length).toBe(251);
+    // Absent before entry: no sample of t2 before 4 s although the run starts at 1 s.
+    expect(run.recording.tracks.find((x) => x.id === 1)!.t[0]).toBeCloseTo(1, 9);
+    expect([...t2.t].every((v) => v >= 4 - 1e-9)).toBe(true);
   });
 
   it("rejects a missing ego track and bad options", () => {

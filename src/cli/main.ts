@@ -10,9 +10,10 @@ import { checkCommand } from "./commands/check.js";
 import { demoCommand } from "./commands/demo.js";
 import { generateCommand } from "./commands/generate.js";
 import { planCommand } from "./commands/plan.js";
+import { resimCommand } from "./commands/resim.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, checkCommand, generateCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, checkCommand, generateCommand, resimCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -1,5 +1,5 @@
 import { InputError } from "../core/errors.js";
-import { deriveMotion } from "../kinematics/deriveMotion.js";
+import { deriveMotion, type Motion } from "../kinematics/deriveMotion.js";
 import { MANEUVER_DEFAULTS } from "../maneuvers/options.js";
 import type { ObjectKind, Track } from "../recording/types.js";
 import type { Scenario } from "../scenario/types.js";
@@ -10,7 +10,10 @@ import { xmlEscape as esc, xmlNumber as num } from "./xmlText.js";
 export const OPENSCENARIO_REV = { major: 1, minor: 2 } as const;
 
 export interface ConcreteScenarioOptions {
-  /** Neighbours within this longitudinal distance of the ego at some common sample are included (m; default 100). */
+  /**
+   * Neighbours within this longitudinal distance of the ego at some common sample are included (m;
+   * default 250, so that a same-lane leader up to about 7 s of time headway at motorway speed is kept).
+   */
   longitudinalRange?: number;
   /** … and within this lateral distance (m; default 8, about two lanes). */
   lateralRange?: number;
@@ -18,8 +21,17 @@ export interface ConcreteScenarioOptions {
   vertexEvery?: number;
   /** FileHeader date (xsd:dateTime); fixed by default so that reruns are byte-identical. */
   date?: string;
+  /**
+   * Lead-in and run-out around the test case's window (s; default 1, half the smoothing window), where
+   * the ego's track has them: a player's (and roadsieve's chain's) smoothing then sees the same motion
+   * before and after the window as in the recording. The window itself is given by the FileHeader
+   * properties roadsieve.windowStart_s / roadsieve.windowEnd_s (simulation time).
+   */
+  leadIn?: number;
   /** Savitzky–Golay window for positions (s); default the maneuver stage's (MANEUVER_DEFAULTS.windowS). */
   smoothingWindowS?: number;
+  /** Savitzky–Golay polynomial order; default the maneuver stage's (MANEUVER_DEFAULTS.order). */
+  smoothingOrder?: number;
   /** Evaluation thresholds written as properties of the ego's controller slot. */
   thresholds?: EvaluationThresholds;
 }
@@ -52,7 +64,7 @@ export interface ConcreteScenarioResult {
   xml: string;
   /** Entity names: "ego" first, then "t<trackId>" in track-id order. */
   actors: string[];
-  /** Entry and exit time of each actor relative to the window start (s); null = present at the start / until the end. */
+  /** Entry and exit time of each actor in simulation time (s, 0 = start of the lead-in); null = present at the start / until the end. */
   presence: Record<string, { enter: number | null; leave: number | null }>;
   warnings: string[];
 }
@@ -77,13 +89,42 @@ interface Actor {
   leave: number | null;
 }
 
+/** Smoothed motion per track and filter setting, reused across the test cases of one export (tracks are immutable). */
+/** Van Cittert steps (two: see docs/openscenario.md for the measured effect of one, two and three). */
+const VAN_CITTERT_STEPS = 2;
+const SMOOTHED = new WeakMap<Track, Map<string, Motion>>();
+
+function smoothTrack(tr: Track, windowS: number, order: number): Motion {
+  let byKey = SMOOTHED.get(tr);
+  if (!byKey) SMOOTHED.set(tr, (byKey = new Map()));
+  const key = `${windowS}/${order}`;
+  let m = byKey.get(key);
+  if (!m) {
+    const o = { windowS, accelWindowS: MANEUVER_DEFAULTS.accelWindowS, order, maxGapFactor: MANEUVER_DEFAULTS.maxGapFactor };
+    const m1 = deriveMotion({ t: tr.t, x: tr.x, y: tr.y }, o);
+    // Van Cittert iteration (P. H. van Cittert, Z. Physik 69, 1931): z ← z + S(x) − S(z) from z = S(x), with S the
+    // detection's filter, so that S(z) ≈ S(x): the chain, smoothing the exported path
+    // once more, measures the motion the detection measured on the recording, while noise stays
+    // suppressed (each step is a polynomial in S, which passes nothing that S stops).
+    let z: Motion = m1;
+    for (let it = 0; it < VAN_CITTERT_STEPS; it++) {
+      const sz = deriveMotion({ t: tr.t, x: z.x, y: z.y }, o);
+      const step = (zk: Float64Array, target: Float64Array, szk: Float64Array): Float64Array => zk.map((v, i) => v + target[i]! - szk[i]!);
+      z = { x: step(z.x, m1.x, sz.x), y: step(z.y, m1.y, sz.y), vx: step(z.vx, m1.vx, sz.vx), vy: step(z.vy, m1.vy, sz.vy), ax: step(z.ax, m1.ax, sz.ax), ay: step(z.ay, m1.ay, sz.ay) };
+    }
+    m = z;
+    byKey.set(key, m);
+  }
+  return m;
+}
+
 /**
  * Smoothed samples of a track inside the window, one per recording frame: positions from the same
  * Savitzky–Golay filter the maneuver detection uses (kinematics/deriveMotion with the maneuver stage's
  * window and order), heading and speed from the filter's derivative of the smoothed path.
  */
-function smoothedWindow(tr: Track, f0: number, f1: number, frameRate: number, windowS: number): Sample[] {
-  const m = deriveMotion({ t: tr.t, x: tr.x, y: tr.y }, { windowS, accelWindowS: MANEUVER_DEFAULTS.accelWindowS, order: MANEUVER_DEFAULTS.order, maxGapFactor: MANEUVER_DEFAULTS.maxGapFactor });
+function smoothedWindow(tr: Track, f0: number, f1: number, frameRate: number, windowS: number, order: number): Sample[] {
+  const m = smoothTrack(tr, windowS, order);
   const out: Sample[] = [];
   for (let i = 0; i < tr.t.length; i++) {
     const f = Math.round(tr.t[i]! * frameRate);
@@ -187,7 +228,7 @@ function worldPosition(p: Sample, len: number): string {
  * - every vehicle's position is its reference point (rear-axle middle, declared by its BoundingBox),
  *   converted from the recorded box centre (referencePoint.ts);
  * - trajectories are the Savitzky–Golay smoothed path at every recording frame (vertex times are
- *   whole frames, k / frameRate, relative to the window start), headings from the smoothed velocity;
+ *   whole frames, k / frameRate, from the start of the lead-in), headings from the smoothed velocity;
  * - a vehicle that enters the window late is removed in Init (DeleteEntityAction) and added at its
  *   entry frame (AddEntityAction) with its trajectory; one that leaves early is deleted at the frame
  *   after its last sample;
@@ -195,25 +236,31 @@ function worldPosition(p: Sample, len: number): string {
  *   road frame (x along the driving direction, y to the left).
  */
 export function concreteScenarioXml(input: ConcreteScenarioInput, options: ConcreteScenarioOptions = {}): ConcreteScenarioResult {
-  const longRange = options.longitudinalRange ?? 100;
+  const longRange = options.longitudinalRange ?? 250;
+  const leadIn = options.leadIn ?? MANEUVER_DEFAULTS.windowS / 2;
   const latRange = options.lateralRange ?? 8;
   const every = options.vertexEvery ?? 1;
   const date = options.date ?? "1970-01-01T00:00:00";
   const windowS = options.smoothingWindowS ?? MANEUVER_DEFAULTS.windowS;
+  const order = options.smoothingOrder ?? MANEUVER_DEFAULTS.order;
   const thresholds = options.thresholds ?? DEFAULT_THRESHOLDS;
   if (!Number.isInteger(every) || every < 1) throw new InputError(`vertexEvery=${every} should be an integer >= 1`, { column: "vertexEvery", value: every });
   if (!(longRange > 0) || !(latRange > 0)) throw new InputError(`longitudinalRange=${longRange} and lateralRange=${latRange} should be > 0 m`, { column: "longitudinalRange" });
   if (!/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}/.test(date)) throw new InputError(`date="${date}" should be an xsd:dateTime like 2026-01-31T12:00:00`, { column: "date", value: date });
+  if (!(leadIn >= 0) || !Number.isFinite(leadIn)) throw new InputError(`leadIn=${leadIn} should be a finite number >= 0 s`, { column: "leadIn", value: leadIn });
   if (!(input.frameRate > 0)) throw new InputError(`frameRate=${input.frameRate} should be > 0 Hz`, { column: "frameRate", value: input.frameRate });
   const s = input.scenario;
   const fr = input.frameRate;
-  const f0 = Math.round(s.tStart * fr);
-  const f1 = Math.round(s.tEnd * fr);
-  const frames = f1 - f0;
+  const w0 = Math.round(s.tStart * fr);
+  const w1 = Math.round(s.tEnd * fr);
   const warnings: string[] = [];
   const ego = input.tracks.find((t) => t.id === s.egoTrack && t.recording === s.recording);
   if (!ego) throw new InputError(`ego track ${s.egoTrack} of recording "${s.recording}" is not among the ${input.tracks.length} tracks given`, { value: s.egoTrack });
-  const egoSamples = smoothedWindow(ego, f0, f1, fr, windowS);
+  const lead = Math.round(leadIn * fr);
+  const f0 = Math.max(w0 - lead, Math.min(w0, Math.round(ego.t[0]! * fr)));
+  const f1 = Math.min(w1 + lead, Math.max(w1, Math.round(ego.t[ego.t.length - 1]! * fr)));
+  const frames = f1 - f0;
+  const egoSamples = smoothedWindow(ego, f0, f1, fr, windowS, order);
   if (egoSamples.length < 2) throw new InputError(`ego track ${s.egoTrack} has ${egoSamples.length} samples in [${s.tStart}, ${s.tEnd}] s; a trajectory needs at least 2`, { value: s.egoTrack });
   const egoAt = new Map(egoSamples.map((p) => [p.f, p]));
 
@@ -223,7 +270,7 @@ export function concreteScenarioXml(input: ConcreteScenarioInput, options: Concr
     const t0 = tr.t[0]!;
     const tn = tr.t[tr.t.length - 1]!;
     if (tn < s.tStart - 1e-9 || t0 > s.tEnd + 1e-9) continue;
-    const smp = smoothedWindow(tr, f0, f1, fr, windowS);
+    const smp = smoothedWindow(tr, f0, f1, fr, windowS, order);
     const near = smp.some((p) => {
       const e = egoAt.get(p.f);
       return e !== undefined && Math.abs(p.x - e.x) <= longRange && Math.abs(p.y - e.y) <= latRange;
@@ -249,7 +296,9 @@ export function concreteScenarioXml(input: ConcreteScenarioInput, options: Concr
     `      <Property name="roadsieve.frameRate_Hz" value="${num(fr, 6)}"/>`,
     `      <Property name="roadsieve.recording" value="${esc(s.recording)}"/>`,
     `      <Property name="roadsieve.egoTrack" value="${s.egoTrack}"/>`,
-    `      <Property name="roadsieve.tStart_s" value="${num(s.tStart, 6)}"/>`,
+    `      <Property name="roadsieve.tStart_s" value="${num(f0 / fr, 6)}"/>`,
+    `      <Property name="roadsieve.windowStart_s" value="${num((w0 - f0) / fr, 6)}"/>`,
+    `      <Property name="roadsieve.windowEnd_s" value="${num((w1 - f0) / fr, 6)}"/>`,
     `    </Properties>`,
     `  </FileHeader>`,
     `  <ParameterDeclarations/>`,
@@ -334,7 +383,8 @@ export function concreteScenarioXml(input: ConcreteScenarioInput, options: Concr
     const last = a.samples.length - 1;
     a.samples.forEach((p, k) => {
       if (k % every !== 0 && k !== last) return;
-      lines.push(`                              <Vertex time="${num(p.f / fr, 6)}"><Position>${worldPosition(p, a.track.length)}</Position></Vertex>`);
+      // One line per vertex without indentation: a 10 s window holds 250 vertices per vehicle.
+      lines.push(`<Vertex time="${num(p.f / fr, 6)}"><Position>${worldPosition(p, a.track.length)}</Position></Vertex>`);
     });
     lines.push(
       `                            </Polyline>`,

@@ -1,0 +1,142 @@
+import { readFile, rename, rm, mkdir } from "node:fs/promises";
+import { join } from "node:path";
+import { InputError } from "../core/errors.js";
+import { writeFileAtomic } from "../core/io.js";
+import type { Progress } from "../core/progress.js";
+import { readRecording } from "../recording/readRecording.js";
+import type { Recording } from "../recording/types.js";
+import { tracksCsv } from "../recording/writeTracks.js";
+import { chainView, egoSeries, type ChainView } from "./egoSeries.js";
+import { fidelityCsv, fidelityBlock, withinTargets, type FidelityRow } from "./fidelityTable.js";
+import { readOpenScenario } from "./readOpenScenario.js";
+import type { ReferenceDriverOptions } from "./referenceDriver.js";
+import { replayFidelity } from "./replayFidelity.js";
+import { simulateScenario, type SimulationRun } from "./simulateScenario.js";
+import type { ScenarioModel } from "./scenarioModel.js";
+
+export interface ResimPlanOptions {
+  /** Also drive every ego with the reference driver (default true). */
+  closedLoop?: boolean;
+  driver?: ReferenceDriverOptions;
+  progress?: Progress;
+}
+
+interface PlanCase {
+  id: string;
+  role: string;
+  logicalScenario: string | null;
+  source: { recording: string; egoTrack: number; tStart: number; tEnd: number };
+}
+
+/** The test cases of a plan.json with a recorded source (sampled variations have none and are skipped here). */
+async function readPlanCases(planDir: string): Promise<PlanCase[]> {
+  const file = join(planDir, "plan.json");
+  let plan: unknown;
+  try {
+    plan = JSON.parse(await readFile(file, "utf8"));
+  } catch (e) {
+    throw new InputError(`cannot read the plan: ${(e as Error).message}`, { file });
+  }
+  const tcs = (plan as { testCases?: unknown }).testCases;
+  if (!Array.isArray(tcs)) throw new InputError(`the plan has no testCases array`, { file, column: "testCases" });
+  const out: PlanCase[] = [];
+  tcs.forEach((tc: Record<string, unknown>, i) => {
+    const src = tc.source as Record<string, unknown> | null | undefined;
+    if (typeof tc.id !== "string") throw new InputError(`testCases[${i}].id should be a string`, { file, column: "id", value: tc.id });
+    if (src === null || src === undefined) return;
+    if (typeof src.recording !== "string" || typeof src.egoTrack !== "number" || typeof src.tStart !== "number" || typeof src.tEnd !== "number")
+      throw new InputError(`testCases[${i}].source should hold recording, egoTrack, tStart, tEnd`, { file, column: "source", value: JSON.stringify(src) });
+    out.push({
+      id: tc.id,
+      role: String(tc.kind ?? tc.role ?? ""),
+      logicalScenario: typeof tc.logicalScenario === "string" ? tc.logicalScenario : null,
+      source: { recording: src.recording, egoTrack: src.egoTrack, tStart: src.tStart, tEnd: src.tEnd },
+    });
+  });
+  return out;
+}
+
+export interface ResimPlanResult {
+  rows: FidelityRow[];
+  /** Files written (under DIR/resim/). */
+  files: string[];
+  warnings: string[];
+}
+
+/**
+ * Re-simulate a plan folder: every test case's `openscenario/<id>.xosc` is read (with its road),
+ * played at the recording's frame rate with the ego replayed and, unless switched off, again with
+ * the reference driver; each replayed run is written in our tracks format, read back through
+ * readRecording, and measured by the chain (maneuvers, scenes) like its source in `recordings`.
+ * Writes DIR/resim/<id>.csv (replay), DIR/resim/<id>.closed-loop.csv, fidelity.csv and fidelity.json.
+ * Every file is read and simulated before anything is written; the folder appears by one rename.
+ */
+export async function resimPlanFolder(planDir: string, recordings: readonly Recording[], options: ResimPlanOptions = {}): Promise<ResimPlanResult> {
+  const cases = await readPlanCases(planDir);
+  const closed = options.closedLoop ?? true;
+  const warnings: string[] = [];
+  const byId = new Map(recordings.map((r) => [r.id, r]));
+  for (const c of cases) if (!byId.has(c.source.recording)) throw new InputError(`test case ${c.id} comes from recording "${c.source.recording}", which was not given; pass its tracks file`, { file: join(planDir, "plan.json") });
+  // 1. read and run everything (bad input stops here, before any file is written).
+  const runs: { c: PlanCase; file: string; model: ScenarioModel; replay: SimulationRun; closedLoop: SimulationRun | null }[] = [];
+  for (const [i, c] of cases.entries()) {
+    options.progress?.({ stage: "resim", done: i, total: cases.length });
+    const file = join(planDir, "openscenario", `${c.id}.xosc`);
+    const model = await readOpenScenario(file);
+    const replay = simulateScenario(model, { ego: "replay", recordingId: c.id });
+    const closedLoop = closed ? simulateScenario(model, { ego: "closed-loop", recordingId: `${c.id}.closed-loop`, driver: options.driver }) : null;
+    runs.push({ c, file, model, replay, closedLoop });
+  }
+  options.progress?.({ stage: "resim", done: cases.length, total: cases.length });
+  // 2. source views, once per recording.
+  const views = new Map<string, ChainView>();
+  for (const r of new Set(cases.map((c) => c.source.recording))) views.set(r, chainView(byId.get(r)!));
+  // 3. write each run in our format into a staging folder, read it back, measure.
+  const finalDir = join(planDir, "resim");
+  const stage = join(planDir, `.resim.${process.pid}.tmp`);
+  await rm(stage, { recursive: true, force: true });
+  await mkdir(stage, { recursive: true });
+  const rows: FidelityRow[] = [];
+  const names: string[] = [];
+  try {
+    for (const [i, r] of runs.entries()) {
+      options.progress?.({ stage: "fidelity", done: i, total: runs.length });
+      const path = join(stage, `${r.c.id}.csv`);
+      await writeFileAtomic(path, tracksCsv(r.replay.recording));
+      names.push(`${r.c.id}.csv`);
+      if (r.closedLoop) {
+        await writeFileAtomic(join(stage, `${r.c.id}.closed-loop.csv`), tracksCsv(r.closedLoop.recording));
+        names.push(`${r.c.id}.closed-loop.csv`);
+      }
+      const back = await readRecording(path, { road: r.replay.recording.road, id: r.c.id });
+      const resimSeries = egoSeries(chainView(back), r.c.source.egoTrack, r.c.source.tStart, r.c.source.tEnd);
+      const srcSeries = egoSeries(views.get(r.c.source.recording)!, r.c.source.egoTrack, r.c.source.tStart, r.c.source.tEnd);
+      const w = [...r.replay.warnings];
+      const replay = resimSeries && srcSeries ? replayFidelity(srcSeries, resimSeries) : null;
+      if (!replay) w.push(`the ego track ${r.c.source.egoTrack} is missing from the ${resimSeries ? "source" : "re-simulated"} run`);
+      rows.push({
+        testCase: r.c.id,
+        role: r.c.role,
+        logicalScenario: r.c.logicalScenario,
+        file: `openscenario/${r.c.id}.xosc`,
+        replay,
+        withinTargets: replay ? withinTargets(replay) : null,
+        replayOutcome: r.replay.ego,
+        closedLoop: r.closedLoop?.ego ?? null,
+        assignedBack: null,
+        warnings: w,
+      });
+      warnings.push(...w.map((x) => `${r.c.id}: ${x}`));
+    }
+    options.progress?.({ stage: "fidelity", done: runs.length, total: runs.length });
+    await writeFileAtomic(join(stage, "fidelity.csv"), fidelityCsv(rows));
+    await writeFileAtomic(join(stage, "fidelity.json"), `${JSON.stringify({ testCases: rows.map((r) => ({ id: r.testCase, role: r.role, logicalScenario: r.logicalScenario, fidelity: fidelityBlock(r) })) }, null, 2)}\n`);
+    names.push("fidelity.csv", "fidelity.json");
+    await rm(finalDir, { recursive: true, force: true });
+    await rename(stage, finalDir);
+  } catch (e) {
+    await rm(stage, { recursive: true, force: true });
+    throw e;
+  }
+  return { rows, files: names.map((n) => join(finalDir, n)), warnings };
+}
