@@ -36,7 +36,7 @@ export function withinTargets(f: ReplayFidelity): boolean | null {
 /** The block for plan.json (testCases[i].fidelity): stable key order, numbers rounded for reading. */
 export function fidelityBlock(r: FidelityRow): Record<string, unknown> {
   const rd = (v: number | null, d = 4): number | null => (v === null ? null : Number(v.toFixed(d)));
-  const outcome = (o: EgoOutcome | null) => (o ? { minTtc: rd(o.minTtc), minThw: rd(o.minThw), collision: o.collision, collisionTime: rd(o.collisionTime) } : null);
+  const outcome = (o: EgoOutcome | null) => (o ? { minTtc: rd(o.minTtc), minThw: rd(o.minThw), collision: o.collision, collisionTime: rd(o.collisionTime), collisionAhead: o.collisionAhead } : null);
   const f = r.replay;
   return {
     replay: f
@@ -77,6 +77,7 @@ export const FIDELITY_CSV_COLUMNS = [
   "closed_loop_min_ttc_s",
   "closed_loop_min_thw_s",
   "closed_loop_collision",
+  "closed_loop_collision_ahead",
   "assigned_back",
 ] as const;
 
@@ -105,6 +106,7 @@ export function fidelityCsv(rows: readonly FidelityRow[]): string {
         n(r.closedLoop?.minTtc),
         n(r.closedLoop?.minThw),
         r.closedLoop ? b(r.closedLoop.collision) : "",
+        r.closedLoop ? b(r.closedLoop.collisionAhead) : "",
         b(r.assignedBack),
       ].join(","),
     );

@@ -22,7 +22,10 @@ export interface ReferenceDriver {
 }
 
 export interface ReferenceDriverOptions {
-  /** Desired speed v0 (m/s); default max(initial speed, road speed limit). */
+  /**
+   * Desired speed v0 (m/s). Default: the highest speed of the ego's recorded trajectory in the file
+   * (so that the reference driver keeps the recorded pace), else max(initial speed, road speed limit).
+   */
   desiredSpeed?: number;
   timeGap?: number;
   minGap?: number;
@@ -34,11 +37,11 @@ export interface ReferenceDriverOptions {
   laneChanges?: boolean;
 }
 
-export function resolveDriver(o: ReferenceDriverOptions, initialSpeed: number, speedLimit: number | undefined): ReferenceDriver {
+export function resolveDriver(o: ReferenceDriverOptions, initialSpeed: number, speedLimit: number | undefined, recordedTopSpeed: number | null = null): ReferenceDriver {
   const d = DEFAULT_TRAFFIC_OPTIONS;
   return {
     idm: {
-      desiredSpeed: o.desiredSpeed ?? Math.max(initialSpeed, speedLimit ?? initialSpeed, 1),
+      desiredSpeed: o.desiredSpeed ?? (recordedTopSpeed !== null && recordedTopSpeed > 1 ? recordedTopSpeed : Math.max(initialSpeed, speedLimit ?? initialSpeed, 1)),
       timeGap: o.timeGap ?? d.carTimeGapMean,
       minGap: o.minGap ?? d.minGap,
       maxAccel: o.maxAccel ?? d.carMaxAccel,

@@ -28,6 +28,12 @@ export interface EgoOutcome {
   collisionTime: number | null;
   /** Entity the ego collided with first. */
   collisionWith: string | null;
+  /**
+   * True when that entity was ahead of the ego (the ego ran into it), false when it came from behind.
+   * In closed loop the other vehicles follow the scenario and do not react to the ego, so a collision
+   * from behind says that the reference driver left the recorded path, not that it drove unsafely.
+   */
+  collisionAhead: boolean | null;
 }
 
 export interface SimulationRun {
@@ -87,6 +93,23 @@ interface State {
   out: { t: number[]; x: number[]; y: number[]; vx: number[]; vy: number[] };
   /** Closed-loop lane-change bookkeeping. */
   nextCheck: number;
+}
+
+/** Highest speed along the ego's own trajectories in the file (m/s), null when it has none. */
+function recordedTopSpeed(model: ScenarioModel, ego: string): number | null {
+  let top: number | null = null;
+  const actions = [...model.init, ...model.acts.flatMap((a) => a.events.flatMap((e) => e.actions))];
+  for (const a of actions) {
+    if (a.kind !== "trajectory" || a.entity !== ego) continue;
+    for (let i = 1; i < a.vertices.length; i++) {
+      const p = a.vertices[i - 1]!.position;
+      const q = a.vertices[i]!.position;
+      if (p.type !== "world" || q.type !== "world") continue;
+      const v = Math.hypot(q.x - p.x, q.y - p.y) / ((a.vertices[i]!.t - a.vertices[i - 1]!.t) * a.scale);
+      if (top === null || v > top) top = v;
+    }
+  }
+  return top;
 }
 
 function compare(rule: Rule, a: number, b: number): boolean {
@@ -201,8 +224,15 @@ export function simulateScenario(model: ScenarioModel, options: SimulateOptions 
           else if (d.dimension === "rate") T = d.value > 0 ? Math.abs(vt - v0) / d.value : 0;
           else T = v0 + vt > 0 ? (2 * d.value) / (v0 + vt) : 0;
         }
-        s.v = v0;
-        s.speed = { t0: t, v0, vt, T, shape: SHAPES[d.shape] };
+        // A vehicle does not reverse under a speed action: targets below 0 stop it.
+        const target = Math.max(0, vt);
+        if (T <= 0) {
+          s.v = target;
+          s.speed = null;
+        } else {
+          s.v = v0;
+          s.speed = { t0: t, v0, vt: target, T: d.dimension === "rate" ? Math.abs(target - v0) / d.value : T, shape: SHAPES[d.shape] };
+        }
         if (s.traj) s.traj = null;
         return;
       }
@@ -428,6 +458,7 @@ export function simulateScenario(model: ScenarioModel, options: SimulateOptions 
   let minThw = Infinity;
   let collisionTime: number | null = null;
   let collisionWith: string | null = null;
+  let collisionAhead: boolean | null = null;
 
   for (let k = 0; k <= stopFrame; k++) {
     const t = k / fr;
@@ -435,7 +466,7 @@ export function simulateScenario(model: ScenarioModel, options: SimulateOptions 
       for (const a of model.init) apply(a, 0);
       for (const s of states.values()) if (s.present && !Number.isFinite(s.x)) s.present = false; // never placed: not on the road
       if (mode === "closed-loop") {
-        driver = resolveDriver(options.driver ?? {}, ego!.v, road.road.speedLimit);
+        driver = resolveDriver(options.driver ?? {}, ego!.v, road.road.speedLimit, recordedTopSpeed(model, egoName));
         ego!.speed = ego!.traj = null;
       }
     } else {
@@ -479,6 +510,7 @@ export function simulateScenario(model: ScenarioModel, options: SimulateOptions 
           if (Math.abs(oc.x - ec.x) < 0.5 * (o.def.length + ego.def.length) && Math.abs(oc.y - ec.y) < 0.5 * (o.def.width + ego.def.width)) {
             collisionTime = t;
             collisionWith = o.def.name;
+            collisionAhead = oc.x > ec.x;
             break;
           }
         }
@@ -525,7 +557,7 @@ export function simulateScenario(model: ScenarioModel, options: SimulateOptions 
     frameRate: fr,
     frames: stopFrame + 1,
     trackIds: ids,
-    ego: { minTtc: Number.isFinite(minTtc) ? minTtc : null, minThw: Number.isFinite(minThw) ? minThw : null, collision: collisionTime !== null, collisionTime, collisionWith },
+    ego: { minTtc: Number.isFinite(minTtc) ? minTtc : null, minThw: Number.isFinite(minThw) ? minThw : null, collision: collisionTime !== null, collisionTime, collisionWith, collisionAhead },
     warnings,
   };
 }
