@@ -20,3 +20,6 @@ export { assignBack, nearestRepresentative } from "./assignBack.js";
 export type { AssignBackItem, AssignBackResult } from "./assignBack.js";
 export { resimPlanFolder } from "./resimPlan.js";
 export type { ResimPlanOptions, ResimPlanResult } from "./resimPlan.js";
+export { measureTemplateParameters, templateTolerance } from "./measureTemplateParameters.js";
+export { templateFidelity } from "./templateFidelity.js";
+export type { TemplateFidelityRow } from "./templateFidelity.js";
