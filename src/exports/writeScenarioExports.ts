@@ -5,7 +5,10 @@ import type { TestPlan } from "../plan/types.js";
 import type { Recording } from "../recording/types.js";
 import type { Scenario } from "../scenario/types.js";
 import { concreteScenarioXml, type ConcreteScenarioOptions } from "./concreteScenarioXml.js";
+import type { LogicalScenarioLike, TestCaseLike } from "./logicalScenarioShape.js";
+import { logicalTemplateXml, TEMPLATE_INPUTS } from "./logicalTemplateXml.js";
 import { openDriveXml } from "./openDriveXml.js";
+import { marginalsXml, variationsXml } from "./parameterDistributionXml.js";
 
 export interface ScenarioExportFile {
   path: string;
@@ -32,8 +35,10 @@ export function roadExtent(rec: Recording): [number, number] {
 }
 
 /**
- * The concrete OpenSCENARIO files of a plan (one per test case, "<id>.xosc") and one OpenDRIVE road
- * per recording ("<recording>.xodr"), as texts. Nothing is written; see {@link writeScenarioExports}.
+ * The concrete OpenSCENARIO files of a plan (one per test case, "<id>.xosc"), one OpenDRIVE road per
+ * recording ("<recording>.xodr") and, when the plan has logical scenarios, a parameterized template
+ * per logical scenario with its value sets and marginals ("logical/<id>.xosc", ".variations.xosc",
+ * ".marginals.xosc"), as texts. Nothing is written; see {@link writeExportFiles}.
  */
 export function scenarioExportFiles(
   plan: TestPlan,
@@ -65,6 +70,30 @@ export function scenarioExportFiles(
     } catch (e) {
       if (!(e instanceof InputError)) throw e;
       warnings.push(`${tc.id}: not exported: ${e.message}`);
+    }
+  }
+  // Logical scenarios (plan schema 2, CONTRACT.md §2), when the plan has them: a template per
+  // logical scenario of a templated class, with its value sets and marginals, under logical/.
+  const logical = (plan as unknown as { logicalScenarios?: LogicalScenarioLike[] }).logicalScenarios;
+  if (Array.isArray(logical)) {
+    const cases = (plan.testCases as unknown as Partial<TestCaseLike>[]).filter((tc): tc is TestCaseLike => typeof tc.logicalScenario === "string" && typeof tc.values === "object" && tc.values !== null);
+    for (const ls of logical) {
+      if (!TEMPLATE_INPUTS[ls.classId]) {
+        warnings.push(`${ls.id}: class "${ls.classId}" has no template; not exported as a logical scenario`);
+        continue;
+      }
+      const rec = byId.get(ls.representative.recording) ?? recordings[0];
+      if (!rec) continue;
+      const roadFile = roadFileName(rec.id);
+      if (!roads.has(rec.id)) {
+        roads.add(rec.id);
+        files.push({ path: roadFile, text: openDriveXml(rec.road, { xRange: roadExtent(rec) }) });
+      }
+      const tpl = logicalTemplateXml(ls, rec.road, { roadFile: `../${roadFile}`, thresholds: options.thresholds });
+      files.push({ path: `logical/${ls.id}.xosc`, text: tpl.xml });
+      files.push({ path: `logical/${ls.id}.variations.xosc`, text: variationsXml(ls, cases, `${ls.id}.xosc`).xml });
+      files.push({ path: `logical/${ls.id}.marginals.xosc`, text: marginalsXml(ls, `${ls.id}.xosc`, { seed: plan.provenance.seed ?? 1 }).xml });
+      warnings.push(...tpl.warnings.map((w) => `${ls.id}: ${w}`));
     }
   }
   return { files, warnings };

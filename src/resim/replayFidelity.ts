@@ -11,6 +11,10 @@ export interface ReplayFidelity {
   /** Frames with the same leader in both runs / frames with a leader in the source. */
   leaderAgreement: number | null;
   speedMape: number | null;
+  /** Mean absolute speed error (m/s): meaningful also where the ego nearly stops. */
+  speedMae: number | null;
+  /** Lowest source speed in the window (m/s): below a few m/s a percentage error says little. */
+  sourceMinSpeed: number | null;
   gapMape: number | null;
   thwMape: number | null;
   lateralMape: number | null;
@@ -70,6 +74,8 @@ export function replayFidelity(source: EgoSeries, resim: EgoSeries): ReplayFidel
     frames: speed.length,
     leaderAgreement: withLeader > 0 ? same / withLeader : null,
     speedMape: mape(speed, 1),
+    speedMae: speed.length > 0 ? speed.reduce((acc, [a, b]) => acc + Math.abs(a - b), 0) / speed.length : null,
+    sourceMinSpeed: speed.length > 0 ? Math.min(...speed.map(([a]) => a)) : null,
     gapMape: mape(gap, 1),
     thwMape: mape(thw, 0.1),
     lateralMape: mape(lateral, 0.1),

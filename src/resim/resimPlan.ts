@@ -18,6 +18,8 @@ export interface ResimPlanOptions {
   /** Also drive every ego with the reference driver (default true). */
   closedLoop?: boolean;
   driver?: ReferenceDriverOptions;
+  /** Re-simulate only the test cases this accepts (by id and role); default all. */
+  only?: (testCase: { id: string; role: string }) => boolean;
   progress?: Progress;
 }
 
@@ -72,7 +74,7 @@ export interface ResimPlanResult {
  * Every file is read and simulated before anything is written; the folder appears by one rename.
  */
 export async function resimPlanFolder(planDir: string, recordings: readonly Recording[], options: ResimPlanOptions = {}): Promise<ResimPlanResult> {
-  const cases = await readPlanCases(planDir);
+  const cases = (await readPlanCases(planDir)).filter((c) => !options.only || options.only({ id: c.id, role: c.role }));
   const closed = options.closedLoop ?? true;
   const warnings: string[] = [];
   const byId = new Map(recordings.map((r) => [r.id, r]));
