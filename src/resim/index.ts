@@ -23,3 +23,4 @@ export type { ResimPlanOptions, ResimPlanResult } from "./resimPlan.js";
 export { measureTemplateParameters, templateTolerance } from "./measureTemplateParameters.js";
 export { templateFidelity } from "./templateFidelity.js";
 export type { TemplateFidelityRow } from "./templateFidelity.js";
+export { attachFidelity } from "./attachFidelity.js";

@@ -1,7 +1,10 @@
 import { readFile, rename, rm, mkdir } from "node:fs/promises";
-import { join } from "node:path";
+import { basename, join, resolve } from "node:path";
 import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../core/io.js";
+import { VERSION } from "../core/version.js";
+import { fidelitySection } from "../report/fidelitySection.js";
+import { renderHtml } from "../report/html.js";
 import type { Progress } from "../core/progress.js";
 import { readRecording } from "../recording/readRecording.js";
 import type { Recording } from "../recording/types.js";
@@ -133,7 +136,9 @@ export async function resimPlanFolder(planDir: string, recordings: readonly Reco
     options.progress?.({ stage: "fidelity", done: runs.length, total: runs.length });
     await writeFileAtomic(join(stage, "fidelity.csv"), fidelityCsv(rows));
     await writeFileAtomic(join(stage, "fidelity.json"), `${JSON.stringify({ testCases: rows.map((r) => ({ id: r.testCase, role: r.role, logicalScenario: r.logicalScenario, fidelity: fidelityBlock(r) })) }, null, 2)}\n`);
-    names.push("fidelity.csv", "fidelity.json");
+    const html = renderHtml({ title: "roadsieve re-simulation", subtitle: `plan folder ${basename(resolve(planDir))}`, sections: [fidelitySection(rows)], provenance: { tool: `roadsieve ${VERSION}`, plan: "plan.json" } });
+    await writeFileAtomic(join(stage, "fidelity.html"), html);
+    names.push("fidelity.csv", "fidelity.json", "fidelity.html");
     await rm(finalDir, { recursive: true, force: true });
     await rename(stage, finalDir);
   } catch (e) {
