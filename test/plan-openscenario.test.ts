@@ -174,3 +174,62 @@ describe("player: bad input names file, element and line", () => {
     await expectError(file, /road\.xodr: line 3, element <header>: OpenDRIVE 1\.8 is not supported/);
   });
 });
+
+describe("plan-level exports and helpers", () => {
+  it("a plan with logical scenarios gets a template, value sets and marginals per templated class, all schema-valid", async () => {
+    const { handBuiltLogicalScenarios } = await import("./helpers/logicalFixtures.js");
+    const scenarios = [scenario];
+    const plan = buildTestPlan({ scenarios, labels: Int32Array.from([0]), medoids: Int32Array.from([0]), clusterMethod: "kmeans" });
+    const logical = handBuiltLogicalScenarios().map((l) => ({ ...l, representative: { ...l.representative, recording: "orrowind-a" } }));
+    const withLogical = { ...plan, logicalScenarios: [...logical, { ...logical[0]!, id: "LS-99", classId: "slow-traffic" }], testCases: plan.testCases.map((tc) => ({ ...tc, logicalScenario: "LS-03", kind: "representative", values: { egoSpeed: 30, leaderSpeed: 28, gap: 25, leaderDecel: 4, brakeDuration: 3 } })) };
+    const rec: Recording = { id: "orrowind-a", source: "x", checksum: "", road, tracks, rejected: [], warnings: [] };
+    const res = scenarioExportFiles(withLogical as unknown as typeof plan, scenarios, [rec]);
+    const logicalFiles = res.files.filter((f) => f.path.startsWith("logical/"));
+    expect(logicalFiles.length).toBe(3 * logical.length);
+    expect(res.warnings.join(" ")).toMatch(/LS-99: class "slow-traffic" has no template/);
+    const braking = res.files.find((f) => f.path === "logical/LS-03.variations.xosc")!.text;
+    expect(braking).toContain('<ParameterAssignment parameterRef="leaderDecel_mps2" value="4"/>');
+    const paths = await writeExportFiles(res.files, join(tmp, "plan-logical"));
+    expect(xsdFailures(paths.filter((p) => p.endsWith(".xosc")), OSC_XSD)).toEqual([]);
+    // The template's road reference resolves from logical/ and the player runs it.
+    const run = simulateScenario(await readOpenScenario(join(tmp, "plan-logical", "logical", "LS-03.xosc")));
+    expect(run.recording.tracks.length).toBe(2);
+  });
+
+  it("expressions: ${…} with parameters, precedence and unary minus, as in ASAM OpenSCENARIO 1.2 section 9", async () => {
+    const { evaluateValue } = await import("../src/resim/expression.js");
+    const p = new Map([
+      ["gap_m", "25"],
+      ["v_mps", "30"],
+    ]);
+    // Worked by hand: 25 + (30 − 28) · 2 + 4.5 = 33.5; −25 − 4.5 = −29.5; 30 / 4 % 7 = 0.5.
+    expect(evaluateValue("${$gap_m + ($v_mps - 28) * 2 + 4.5}", p)).toEqual({ value: "33.5" });
+    expect(evaluateValue("${-$gap_m - 4.5}", p)).toEqual({ value: "-29.5" });
+    expect(evaluateValue("${$v_mps / 4 % 7}", p)).toEqual({ value: "0.5" });
+    expect(evaluateValue("$gap_m", p)).toEqual({ value: "25" });
+    expect(evaluateValue("${$nope + 1}", p)).toMatchObject({ error: expect.stringMatching(/\$nope is not declared/) });
+  });
+
+  it("attachFidelity puts a fidelity block on the matching test cases and null on the others", async () => {
+    const { attachFidelity } = await import("../src/resim/attachFidelity.js");
+    const { fidelityCsv, FIDELITY_CSV_COLUMNS } = await import("../src/resim/fidelityTable.js");
+    const row = {
+      testCase: "TC-0001",
+      role: "representative",
+      logicalScenario: null,
+      file: "openscenario/TC-0001.xosc",
+      replay: { frames: 251, leaderAgreement: 1, speedMape: 0.1234567, speedMae: 0.02, sourceMinSpeed: 28, gapMape: 0.2, thwMape: 0.3, lateralMape: 0.05, minThwSource: 1.2, minThwResim: 1.21, minThwDiff: 0.01 },
+      withinTargets: true,
+      replayOutcome: { minTtc: null, minThw: 1.2, collision: false, collisionTime: null, collisionWith: null, collisionAhead: null },
+      closedLoop: null,
+      assignedBack: null,
+      warnings: [],
+    };
+    const out = attachFidelity({ testCases: [{ id: "TC-0001" }, { id: "TC-0002" }] }, [row]);
+    expect((out.testCases[0] as unknown as { fidelity: { replay: { speedMape: number } } }).fidelity.replay.speedMape).toBe(0.1235);
+    expect((out.testCases[1] as unknown as { fidelity: unknown }).fidelity).toBeNull();
+    const csv = fidelityCsv([row]).trim().split("\n");
+    expect(csv[0]!.split(",")).toEqual([...FIDELITY_CSV_COLUMNS]);
+    expect(csv[1]!.split(",").length).toBe(FIDELITY_CSV_COLUMNS.length);
+  });
+});
