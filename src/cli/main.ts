@@ -6,6 +6,7 @@
 import { InputError } from "../core/errors.js";
 import { VERSION } from "../core/version.js";
 import type { Command } from "./command.js";
+import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
 import { demoCommand } from "./commands/demo.js";
 import { generateCommand } from "./commands/generate.js";
@@ -13,7 +14,7 @@ import { planCommand } from "./commands/plan.js";
 import { resimCommand } from "./commands/resim.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, checkCommand, generateCommand, resimCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, checkCommand, generateCommand, resimCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -22,9 +22,6 @@ export const TEMPLATE_INPUTS: Readonly<Record<string, readonly string[]>> = Obje
   overtaken: ["egoSpeed", "overtakerRelSpeed", "lateralDistance"],
 });
 
-/** Duration of a sinusoidal lane change with the peak lateral speed of a quintic one of unit duration: (π/2) / (15/8). */
-export const SINUSOID_PER_QUINTIC = Math.PI / 2 / (15 / 8);
-
 /** A gap given as null ("no such vehicle") is written as this distance: far outside any interaction (m). */
 export const ABSENT_GAP = 1000;
 
@@ -130,13 +127,10 @@ export function logicalTemplateXml(ls: LogicalScenarioLike, road: Road, options:
     init.push(`        <Private entityRef="${name}">`, `          <PrivateAction>`, `            <TeleportAction>`, `              <Position>`, `                ${position}`, `              </Position>`, `            </TeleportAction>`, `          </PrivateAction>`, ...speedInit(name, speed), `        </Private>`);
   };
   const rel = (dLane: number, ds: string, offset = "0"): string => `<RelativeLanePosition entityRef="ego" dLane="${dLane}" ds="${ds}" offset="${offset}"/>`;
-  // The class parameter laneChangeDuration is the duration of the minimum-jerk (quintic) profile the
-  // detection fits to a lane change (docs/maneuvers.md); a sinusoidal OpenSCENARIO lane change with the
-  // same peak lateral speed lasts (π/2) / (15/8) of it (peak slopes of the two unit profiles).
-  const laneChange = (target: string, dir: number, durationParam: string): string[] => {
-    const duration = `\${${durationParam} * ${num(SINUSOID_PER_QUINTIC, 6)}}`;
-    return laneChangeLines(target, dir, duration);
-  };
+  // The class parameter laneChangeDuration is the lane change's duration as the detection measures it;
+  // its boundary fit includes the half-cosine shape (docs/maneuvers.md, "Boundaries"), which is the
+  // OpenSCENARIO sinusoidal shape, so the duration is written as it is.
+  const laneChange = (target: string, dir: number, durationParam: string): string[] => laneChangeLines(target, dir, durationParam);
   const laneChangeLines = (target: string, dir: number, duration: string): string[] => [
     `<PrivateAction>`,
     `  <LateralAction>`,
@@ -198,11 +192,11 @@ export function logicalTemplateXml(ls: LogicalScenarioLike, road: Road, options:
     case "cut-in": {
       entities.push({ name: "cutter", lines: car("cutter", false) });
       // The cutter starts in the lane left of the ego at the ego's speed + cutterRelSpeed and starts its
-      // lane change when its bumper gap to the ego reaches gapAtCrossing − cutterRelSpeed · d / 2, with d
-      // the sinusoidal duration (the centre crosses the marking at half of it). It starts TEMPLATE_LEAD_S
+      // lane change when its bumper gap to the ego reaches gapAtCrossing − cutterRelSpeed · duration / 2
+      // (the centre crosses the marking at half the sinusoidal lane change). It starts TEMPLATE_LEAD_S
       // of relative motion away from that distance; the trigger rule follows the sign of the relative
       // speed (closing: lessOrEqual, opening: greaterOrEqual), a declared parameter of its own.
-      const trig = `${P("gapAtCrossing")} - ${P("cutterRelSpeed")} * ${P("laneChangeDuration")} * ${num(SINUSOID_PER_QUINTIC / 2, 6)}`;
+      const trig = `${P("gapAtCrossing")} - ${P("cutterRelSpeed")} * ${P("laneChangeDuration")} / 2`;
       place("cutter", rel(1, `\${${trig} - ${P("cutterRelSpeed")} * ${lead} + ${num(L)}}`), `\${${P("egoSpeed")} + ${P("cutterRelSpeed")}}`);
       rule = (ls.representative.values.cutterRelSpeed ?? 0) < 0 ? "lessOrEqual" : "greaterOrEqual";
       events.push({
