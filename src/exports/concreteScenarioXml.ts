@@ -138,9 +138,9 @@ function smoothTrack(tr: Track, windowS: number, order: number): Motion {
 }
 
 /**
- * Smoothed samples of a track inside the window, one per recording frame: positions from the same
+ * Smoothed samples of a track inside the window, one per recording frame: positions built from the
  * Savitzky–Golay filter the maneuver detection uses (kinematics/deriveMotion with the maneuver stage's
- * window and order), heading and speed from the filter's derivative of the smoothed path.
+ * window and order; see smoothTrack), heading and speed from the filter's derivative of that path.
  */
 function smoothedWindow(tr: Track, f0: number, f1: number, frameRate: number, windowS: number, order: number): Sample[] {
   const m = smoothTrack(tr, windowS, order);
@@ -246,7 +246,7 @@ function worldPosition(p: Sample, len: number): string {
  * One test case (its scenario) as a concrete ASAM OpenSCENARIO 1.2 document that replays the window:
  * - every vehicle's position is its reference point (rear-axle middle, declared by its BoundingBox),
  *   converted from the recorded box centre (referencePoint.ts);
- * - trajectories are the Savitzky–Golay smoothed path at every recording frame (vertex times are
+ * - trajectories are the smoothed path (smoothTrack) at every recording frame (vertex times are
  *   whole frames, k / frameRate, from the start of the lead-in), headings from the smoothed velocity;
  * - a vehicle that enters the window late is removed in Init (DeleteEntityAction) and added at its
  *   entry frame (AddEntityAction) with its trajectory; one that leaves early is deleted at the frame
