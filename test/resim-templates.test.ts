@@ -91,4 +91,24 @@ describe("logical scenario templates and parameter distributions", () => {
     expect(res.rows.length).toBe(10);
     expect(res.share).toBe(1);
   }, 60_000);
+
+  it("resimPlanFolder runs a plan's sampled variations through their templates and reports requested vs re-measured", async () => {
+    const { mkdirSync } = await import("node:fs");
+    const { resimPlanFolder } = await import("../src/resim/resimPlan.js");
+    const ls = all.find((l) => l.classId === "following")!;
+    const planDir = join(tmp, "variation-plan");
+    mkdirSync(planDir, { recursive: true });
+    const testCases = [
+      { id: "TC-0001", logicalScenario: ls.id, kind: "variation", scenarioIndex: null, scenarioId: null, source: null, values: { egoSpeed: 27, leaderSpeed: 25, gap: 30 }, weight: 1, reasons: [] },
+      { id: "TC-0002", logicalScenario: ls.id, kind: "variation", scenarioIndex: null, scenarioId: null, source: null, values: { egoSpeed: 31, leaderSpeed: 31, gap: 22 }, weight: 1, reasons: [] },
+    ];
+    writeFileSync(join(planDir, "plan.json"), JSON.stringify({ logicalScenarios: [ls], testCases }));
+    const rec = { id: "orrowind", source: "x", checksum: "", road, tracks: [], rejected: [], warnings: [] };
+    const res = await resimPlanFolder(planDir, [rec], { closedLoop: false });
+    expect(res.rows).toEqual([]);
+    expect(res.variations.map((v) => v.testCase)).toEqual(["TC-0001", "TC-0002"]);
+    // Requested 30 m and 22 m bumper-to-bumper gaps, re-measured by the chain within 0.5 m / 3 %.
+    expect(res.variations.every((v) => v.row.allWithin)).toBe(true);
+    expect(res.variations[0]!.row.measured.gap!).toBeCloseTo(30, 0);
+  });
 });

@@ -16,11 +16,16 @@ import type { ReferenceDriverOptions } from "./referenceDriver.js";
 import { replayFidelity } from "./replayFidelity.js";
 import { simulateScenario, type SimulationRun } from "./simulateScenario.js";
 import type { ScenarioModel } from "./scenarioModel.js";
+import type { LogicalScenarioLike } from "../exports/logicalScenarioShape.js";
+import { TEMPLATE_INPUTS } from "../exports/logicalTemplateXml.js";
+import { templateFidelity, type TemplateFidelityRow } from "./templateFidelity.js";
 
 export interface ResimPlanOptions {
   /** Also drive every ego with the reference driver (default true). */
   closedLoop?: boolean;
   driver?: ReferenceDriverOptions;
+  /** Also run the plan's sampled variations through their logical scenario's template (default true). */
+  variations?: boolean;
   /** Re-simulate only the test cases this accepts (by id and role); default all. */
   only?: (testCase: { id: string; role: string }) => boolean;
   progress?: Progress;
@@ -33,15 +38,40 @@ interface PlanCase {
   source: { recording: string; egoTrack: number; tStart: number; tEnd: number };
 }
 
-/** The test cases of a plan.json with a recorded source (sampled variations have none and are skipped here). */
-async function readPlanCases(planDir: string): Promise<PlanCase[]> {
+/** Sampled variations of a plan (schema 2: kind "variation", no source) grouped by logical scenario. */
+interface PlanVariations {
+  logical: LogicalScenarioLike;
+  cases: { id: string; values: Record<string, number> }[];
+}
+
+async function readPlanJson(planDir: string): Promise<unknown> {
   const file = join(planDir, "plan.json");
-  let plan: unknown;
   try {
-    plan = JSON.parse(await readFile(file, "utf8"));
+    return JSON.parse(await readFile(file, "utf8"));
   } catch (e) {
     throw new InputError(`cannot read the plan: ${(e as Error).message}`, { file });
   }
+}
+
+function planVariations(plan: unknown): PlanVariations[] {
+  const lss = (plan as { logicalScenarios?: unknown }).logicalScenarios;
+  const tcs = (plan as { testCases?: unknown }).testCases;
+  if (!Array.isArray(lss) || !Array.isArray(tcs)) return [];
+  const out: PlanVariations[] = [];
+  for (const ls of lss as LogicalScenarioLike[]) {
+    if (!TEMPLATE_INPUTS[ls.classId]) continue;
+    const cases = (tcs as Record<string, unknown>[])
+      .filter((tc) => tc.kind === "variation" && tc.logicalScenario === ls.id && typeof tc.values === "object" && tc.values !== null)
+      .map((tc) => ({ id: String(tc.id), values: Object.fromEntries(Object.entries(tc.values as Record<string, unknown>).filter((e): e is [string, number] => typeof e[1] === "number")) }));
+    if (cases.length > 0) out.push({ logical: ls, cases });
+  }
+  return out;
+}
+
+/** The test cases of a plan.json with a recorded source (sampled variations have none and are skipped here). */
+async function readPlanCases(planDir: string, plan?: unknown): Promise<PlanCase[]> {
+  const file = join(planDir, "plan.json");
+  plan ??= await readPlanJson(planDir);
   const tcs = (plan as { testCases?: unknown }).testCases;
   if (!Array.isArray(tcs)) throw new InputError(`the plan has no testCases array`, { file, column: "testCases" });
   const out: PlanCase[] = [];
@@ -63,6 +93,8 @@ async function readPlanCases(planDir: string): Promise<PlanCase[]> {
 
 export interface ResimPlanResult {
   rows: FidelityRow[];
+  /** Sampled variations (plan schema 2): requested vs re-measured template inputs, per test case. */
+  variations: { testCase: string; logicalScenario: string; row: TemplateFidelityRow }[];
   /** Files written (under DIR/resim/). */
   files: string[];
   warnings: string[];
@@ -77,7 +109,9 @@ export interface ResimPlanResult {
  * Every file is read and simulated before anything is written; the folder appears by one rename.
  */
 export async function resimPlanFolder(planDir: string, recordings: readonly Recording[], options: ResimPlanOptions = {}): Promise<ResimPlanResult> {
-  const cases = (await readPlanCases(planDir)).filter((c) => !options.only || options.only({ id: c.id, role: c.role }));
+  const plan = await readPlanJson(planDir);
+  const cases = (await readPlanCases(planDir, plan)).filter((c) => !options.only || options.only({ id: c.id, role: c.role }));
+  const variations = options.variations === false ? [] : planVariations(plan);
   const closed = options.closedLoop ?? true;
   const warnings: string[] = [];
   const byId = new Map(recordings.map((r) => [r.id, r]));
@@ -102,6 +136,7 @@ export async function resimPlanFolder(planDir: string, recordings: readonly Reco
   await rm(stage, { recursive: true, force: true });
   await mkdir(stage, { recursive: true });
   const rows: FidelityRow[] = [];
+  const variationRows: ResimPlanResult["variations"] = [];
   const names: string[] = [];
   try {
     for (const [i, r] of runs.entries()) {
@@ -134,8 +169,16 @@ export async function resimPlanFolder(planDir: string, recordings: readonly Reco
       warnings.push(...w.map((x) => `${r.c.id}: ${x}`));
     }
     options.progress?.({ stage: "fidelity", done: runs.length, total: runs.length });
+    // Sampled variations: each through its logical scenario's template, re-measured by the chain.
+    for (const v of variations) {
+      const rec = byId.get(v.logical.representative.recording) ?? recordings[0];
+      if (!rec) break;
+      const tf = await templateFidelity(v.logical, rec.road, v.cases.map((c) => c.values), join(stage, "variations", v.logical.id), { keep: true });
+      tf.forEach((row, i) => variationRows.push({ testCase: v.cases[i]!.id, logicalScenario: v.logical.id, row }));
+    }
     await writeFileAtomic(join(stage, "fidelity.csv"), fidelityCsv(rows));
-    await writeFileAtomic(join(stage, "fidelity.json"), `${JSON.stringify({ testCases: rows.map((r) => ({ id: r.testCase, role: r.role, logicalScenario: r.logicalScenario, fidelity: fidelityBlock(r) })) }, null, 2)}\n`);
+    const variationJson = variationRows.map((v) => ({ id: v.testCase, logicalScenario: v.logicalScenario, requested: v.row.requested, measured: v.row.measured, within: v.row.within, allWithin: v.row.allWithin }));
+    await writeFileAtomic(join(stage, "fidelity.json"), `${JSON.stringify({ testCases: rows.map((r) => ({ id: r.testCase, role: r.role, logicalScenario: r.logicalScenario, fidelity: fidelityBlock(r) })), variations: variationJson }, null, 2)}\n`);
     const html = renderHtml({ title: "roadsieve re-simulation", subtitle: `plan folder ${basename(resolve(planDir))}`, sections: [fidelitySection(rows)], provenance: { tool: `roadsieve ${VERSION}`, plan: "plan.json" } });
     await writeFileAtomic(join(stage, "fidelity.html"), html);
     names.push("fidelity.csv", "fidelity.json", "fidelity.html");
@@ -145,5 +188,5 @@ export async function resimPlanFolder(planDir: string, recordings: readonly Reco
     await rm(stage, { recursive: true, force: true });
     throw e;
   }
-  return { rows, files: names.map((n) => join(finalDir, n)), warnings };
+  return { rows, variations: variationRows, files: names.map((n) => join(finalDir, n)), warnings };
 }

@@ -60,7 +60,9 @@ export const resimCommand: Command = {
           `worst speed MAPE ${worst("speedMape")} %, gap MAPE ${worst("gapMape")} %, min THW difference ${worst("minThwDiff")} s` +
           (values["no-closed-loop"] ? "\n" : `; reference driver: ${collisions} collision(s)\n`),
       );
-      for (const f of res.files.filter((p) => /fidelity\.(csv|json)$/.test(p))) process.stdout.write(`wrote ${f}\n`);
+      if (res.variations.length > 0)
+        process.stdout.write(`${res.variations.length} sampled variations re-simulated from their templates; ${res.variations.filter((v) => v.row.allWithin).length} re-measured within tolerance of the requested values\n`);
+      for (const f of res.files.filter((p) => /fidelity\.(csv|json|html)$/.test(p))) process.stdout.write(`wrote ${f}\n`);
       for (const w of res.warnings) process.stderr.write(`warning: ${w}\n`);
       return 0;
     } finally {
