@@ -19,6 +19,8 @@ export * from "./cluster/index.js";
 export * from "./exposure/index.js";
 export * from "./coverage/index.js";
 export * from "./plan/index.js";
+export * from "./exports/index.js";
+export * from "./resim/index.js";
 export * from "./pipeline/index.js";
 export * from "./shard/index.js";
 export * from "./extract/index.js";

@@ -134,6 +134,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     scene: o.scene,
     scenario: scenarios.options ?? o.scenario,
     embedding: o.embedding,
+    measure: o.measure,
     weightBy: o.weightBy,
   };
   const exploration = timed("test plan", () =>

@@ -2,6 +2,8 @@ import { VERSION } from "../core/version.js";
 import { LATERAL, LONGITUDINAL } from "../maneuvers/labels.js";
 import type { PipelineResult } from "../pipeline/runPipeline.js";
 import { criticalityFigure } from "./criticalityFigure.js";
+import type { FidelityRow } from "../resim/fidelityTable.js";
+import { fidelitySection } from "./fidelitySection.js";
 import { discoveryFigure, type DiscoverySeries } from "./discoveryFigure.js";
 import type { ReportDocument, ReportSection } from "./html.js";
 import { kDistanceFigure } from "./kDistanceFigure.js";
@@ -25,7 +27,7 @@ export const REPORT_CAUTIONS = [
 ];
 
 /** Turn a pipeline result into the report document (data only; renderHtml makes the page). */
-export function buildReport(r: PipelineResult, title = "roadsieve test plan"): ReportDocument {
+export function buildReport(r: PipelineResult, title = "roadsieve test plan", fidelity?: readonly FidelityRow[]): ReportDocument {
   // The sections below describe the global cluster view (plan.exploration); logicalSection the plan of logical scenarios.
   const plan = r.plan.exploration;
   const sc = r.scenarios.scenarios;
@@ -212,6 +214,8 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
     ],
   });
   const allWarnings = [...r.recordings.flatMap((x) => x.warnings.map((w) => `${x.id}: ${w}`)), ...r.warnings];
+  // Hook: re-simulation results (resim/resimPlanFolder), when the caller has them.
+  if (fidelity && fidelity.length > 0) sections.push(fidelitySection(fidelity));
   if (allWarnings.length > 0) sections.push({ id: "warnings", heading: `Warnings (${allWarnings.length})`, bullets: allWarnings.slice(0, 200).concat(allWarnings.length > 200 ? [`… ${allWarnings.length - 200} more in plan.json`] : []) });
 
   const totalKm = plan.totals.km;

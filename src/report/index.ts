@@ -19,3 +19,4 @@ export { renderHtml, escapeHtml } from "./html.js";
 export type { ReportDocument, ReportSection, ReportTable } from "./html.js";
 export { buildReport, REPORT_CAUTIONS } from "./buildReport.js";
 export { show, showTable, showText, loadPlotly } from "./notebook.js";
+export { fidelitySection, fidelityFigure } from "./fidelitySection.js";

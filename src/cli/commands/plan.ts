@@ -61,7 +61,9 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
                        own: DBSCAN noise, type keys seen once                  (default: noise+types)
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
-  --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
+  --openscenario       also write one ASAM OpenSCENARIO 1.2 file per recorded test case, a parameterized
+                       template per logical scenario and an ASAM OpenDRIVE 1.6 road per recording to
+                       DIR/openscenario/ (docs/openscenario.md)
   --quiet              no progress display
   --classes A,B        scenario classes clustered inside (others: one logical scenario each); ids in docs/logical.md
   --max-k-per-class N  most logical scenarios per class                (default: 2)
@@ -172,7 +174,7 @@ export async function planFromFiles(args: string[], readOptions: ReadRecordingOp
     // OpenSCENARIO needs the tracks: read again, after planning, only the recordings test cases use.
     let recordings: Recording[] | undefined;
     if (v.openscenario) {
-      const used = new Set(result.plan.testCases.flatMap((tc) => (tc.source ? [tc.source.recording] : [])));
+      const used = new Set([...result.plan.testCases.flatMap((tc) => (tc.source ? [tc.source.recording] : [])), ...result.plan.logicalScenarios.map((ls) => ls.representative.recording)]);
       recordings = [];
       for (const s of result.recordings) if (used.has(s.id)) recordings.push(await readRecording(s.source, { ...readOptions, id: s.id, progress }));
     }
