@@ -348,7 +348,7 @@ describe("readRecording validation", () => {
   it("names the file when it does not exist or is not CSV", async () => {
     const f = join(tmp, "nope.csv");
     const e = await inputError(readRecording(f, { road: ROAD }));
-    expect(e.message).toMatch(new RegExp(`^${f.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}: cannot read the tracks file: ENOENT`));
+    expect(e.message).toMatch(new RegExp(`^${f.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}: the tracks file does not exist`));
     const d = dir("noroad");
     writeFileSync(join(d, "x.csv"), "track_id,t,x,y\n1,0,0,1\n");
     const e2 = await inputError(readRecording(join(d, "x.csv")));

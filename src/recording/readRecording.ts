@@ -75,13 +75,15 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
   const progress = o.progress;
 
   const warnings: string[] = [];
-  const road = await resolveRoad(tracksPath, o.road, warnings);
+  // The tracks file first: a missing file is that, not a missing road description beside it.
   try {
     const s = await stat(tracksPath);
     if (!s.isFile()) throw new Error("not a file");
   } catch (e) {
-    throw new InputError(`cannot read the tracks file: ${(e as Error).message}`, { file: tracksPath });
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError(code === "ENOENT" ? `the tracks file does not exist` : `cannot read the tracks file: ${(e as Error).message}`, { file: tracksPath });
   }
+  const road = await resolveRoad(tracksPath, o.road, warnings);
 
   progress?.({ stage: "read", done: 0, total: 1, message: `reading ${tracksPath}` });
   // Hash the bytes while DuckDB scans the file on its own threads.
@@ -112,7 +114,7 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
     road: roadFrame,
     tracks: built.tracks,
     rejected: built.rejected,
-    warnings: [...warnings, ...built.warnings],
+    warnings: [...warnings, ...raw.warnings, ...built.warnings],
   };
 }
 
