@@ -160,7 +160,7 @@ export const planCommand: Command = {
       allowPositionals: true,
     });
     if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet); roadsieve plan --help");
-    const readOptions = await recordingOptions(values);
+    const readOptions = await recordingOptions(values, positionals.length);
     return planFromFiles(positionals, readOptions, values, "out");
   },
 };
