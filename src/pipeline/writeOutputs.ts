@@ -1,5 +1,8 @@
 import { join } from "node:path";
+import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../core/io.js";
+import { openOutputFolder, outputStep } from "../core/outputFolder.js";
+import type { Manifest, ManifestInput } from "../core/outputFolder.js";
 import type { Progress } from "../core/progress.js";
 import { catalogueTables } from "../catalogue/catalogueTables.js";
 import { writeCatalogue } from "../catalogue/writeCatalogue.js";
@@ -26,10 +29,15 @@ export interface WriteOutputsOptions {
 
 /**
  * Write a run's outputs into `dir`: plan.json, plan.csv, report.html and (by default) the catalogue
- * database (and OpenSCENARIO files on request). Returns the paths written and any warnings. Every file is written under a temporary name and renamed. Same result, same bytes.
+ * database (and OpenSCENARIO files on request). Returns the paths written and any warnings. Every
+ * file is written under a temporary name and renamed. Same result, same bytes. To replace a folder as
+ * a whole (never a mix of two runs), write into `openOutputFolder(out).dir` and `commit` it, as
+ * {@link writeOutputFolder} does.
  */
 export async function writeOutputs(r: PipelineResult, dir: string, options: WriteOutputsOptions = {}): Promise<{ files: string[]; warnings: string[] }> {
+  await outputStep("plan");
   const written = await writeTestPlan(r.plan, dir);
+  await outputStep("report");
   const warnings: string[] = [];
   options.progress?.({ stage: "report", done: 0, total: 1 });
   const html = renderHtml(buildReport(r, options.title));
@@ -38,16 +46,18 @@ export async function writeOutputs(r: PipelineResult, dir: string, options: Writ
   written.push(reportPath);
   options.progress?.({ stage: "report", done: 1, total: 1 });
   if (options.openScenario) {
+    await outputStep("openscenario");
     const byId = new Map(options.openScenario.map((rec) => [rec.id, rec.tracks]));
     const osc = await writeOpenScenarioFiles(r.plan, r.scenarios.scenarios, (id) => {
       const tracks = byId.get(id);
-      if (!tracks) throw new RangeError(`recording "${id}" was not passed to writeOutputs; pass the recordings the pipeline ran on`);
+      if (!tracks) throw new InputError(`recording "${id}" was not passed to writeOutputs; pass the recordings the pipeline ran on`);
       return tracks;
     }, join(dir, "openscenario"));
     written.push(...osc.paths);
     warnings.push(...osc.warnings.map((w) => `OpenSCENARIO ${w}`));
   }
   if (options.catalogue !== false) {
+    await outputStep("catalogue");
     const files = await writeCatalogue(join(dir, "catalogue.duckdb"), catalogueTables(r), {
       parquetDir: options.parquet ? join(dir, "catalogue") : undefined,
       progress: options.progress,
@@ -55,4 +65,26 @@ export async function writeOutputs(r: PipelineResult, dir: string, options: Writ
     written.push(...files);
   }
   return { files: written, warnings };
+}
+
+/**
+ * Write a run's outputs into `out` as a whole: into a staging folder beside it, then one swap, with
+ * manifest.json (files, sizes, SHA-256, tool version, inputs) written last. A second run into the
+ * same folder at the same time is refused (InputError naming the other run's pid).
+ */
+export async function writeOutputFolder(
+  r: PipelineResult,
+  out: string,
+  inputs: readonly ManifestInput[],
+  options: WriteOutputsOptions = {},
+): Promise<{ files: string[]; warnings: string[]; manifest: Manifest }> {
+  const folder = await openOutputFolder(out);
+  try {
+    const written = await writeOutputs(r, folder.dir, options);
+    const manifest = await folder.commit(inputs);
+    return { files: [...manifest.files.map((f) => join(folder.out, f.path)), join(folder.out, "manifest.json")], warnings: [...folder.warnings, ...written.warnings], manifest };
+  } catch (e) {
+    await folder.abort();
+    throw e;
+  }
 }

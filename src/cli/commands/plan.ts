@@ -1,4 +1,5 @@
-import { resolve } from "node:path";
+import { join, resolve } from "node:path";
+import { openOutputFolder } from "../../core/outputFolder.js";
 import { parseArgs } from "node:util";
 import type { Progress } from "../../core/progress.js";
 import type { PipelineOptions } from "../../pipeline/options.js";
@@ -102,29 +103,36 @@ export function pipelineOptions(v: PipelineCliValues): PipelineOptions {
 /** Read recordings, run the pipeline, write the outputs, print the summary. Shared by plan and demo. */
 export async function planFromFiles(files: string[], readOptions: ReadRecordingOptions, v: PipelineCliValues, defaultOut: string): Promise<number> {
   const options = pipelineOptions(v);
-  const out = resolve(v.out ?? defaultOut);
+  // --out is checked (and locked) before any work: a bad folder fails in a second, not after the run.
+  const folder = await openOutputFolder(resolve(v.out ?? defaultOut));
   const display = progressDisplay(process.stderr, Boolean(v.quiet));
   const progress: Progress = display.progress;
   const recordings: Recording[] = [];
   try {
+    for (const w of folder.warnings) process.stderr.write(`warning: ${w}\n`);
     for (const f of files) recordings.push(await readRecording(f, { ...readOptions, progress }));
     for (const r of recordings) for (const rj of r.rejected) process.stderr.write(`\nrejected: ${r.source}: track ${rj.trackId}${rj.row !== undefined ? ` (row ${rj.row})` : ""}: ${rj.reason}\n`);
     const result = runPipeline(recordings, options, progress);
-    const written = await writeOutputs(result, out, {
+    const written = await writeOutputs(result, folder.dir, {
       catalogue: !v["no-catalogue"],
       parquet: Boolean(v.parquet),
       openScenario: v.openscenario ? recordings : undefined,
       progress,
     });
+    const manifest = await folder.commit(recordings.map((r) => ({ path: r.source, sha256: r.checksum })));
     display.done();
     process.stdout.write(`${planSummary(result.plan)}\n\n`);
     const t = Object.entries(result.timings)
       .map(([k, s]) => `${k} ${s.toFixed(2)} s`)
       .join(", ");
     process.stdout.write(`timings: ${t}\n`);
-    for (const w of written.files) process.stdout.write(`wrote ${w}\n`);
+    for (const f of manifest.files) process.stdout.write(`wrote ${join(folder.out, f.path)}\n`);
+    process.stdout.write(`wrote ${join(folder.out, "manifest.json")}\n`);
     for (const w of written.warnings) process.stderr.write(`warning: ${w}\n`);
     return 0;
+  } catch (e) {
+    await folder.abort();
+    throw e;
   } finally {
     display.done();
   }
@@ -139,6 +147,9 @@ recorded medoid per cluster, keep rare and critical scenarios on their own, and 
   DIR/plan.csv         one row per test case
   DIR/report.html      a self-contained report with charts (opens offline)
   DIR/catalogue.duckdb every scenario, feature, maneuver and test case, for SQL
+  DIR/manifest.json    every file with its size and SHA-256, the tool version and the inputs
+DIR is replaced as a whole at the end (written beside it first); a second run into the same DIR
+while one is going is refused.
 
 Options:
 ${RECORDING_HELP}
