@@ -1,3 +1,4 @@
+import { checkRecordings } from "./checkRecordings.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import { zeros, type Matrix } from "../core/matrix.js";
@@ -73,6 +74,7 @@ export interface PipelineResult {
  * exact medoids → 2-D map → test plan. Pure: no files are read or written here.
  */
 export function runPipeline(recordings: Recording[], options: PipelineOptions = {}, progress?: Progress): PipelineResult {
+  checkRecordings(recordings);
   const o = resolvePipelineOptions(options);
   const rng = new Rng(o.seed);
   const timings: Record<string, number> = {};
