@@ -7,7 +7,7 @@
 import { InputError } from "../core/errors.js";
 
 /** The checks, by the name used in `accept` and on the command line (--accept). */
-export const PLAUSIBILITY_CHECKS = ["frame-rate", "speed", "jump", "acceleration", "position", "direction", "mean-speed"] as const;
+export const PLAUSIBILITY_CHECKS = ["frame-rate", "position", "jump", "speed", "acceleration", "direction", "mean-speed"] as const;
 export type PlausibilityCheck = (typeof PLAUSIBILITY_CHECKS)[number];
 
 /** Bounds of the plausibility checks (SI units) and the checks accepted on purpose. */
@@ -48,6 +48,9 @@ export const PLAUSIBILITY_DEFAULTS: Readonly<Required<Omit<PlausibilityOptions, 
   minMeanSpeed: 0.5,
   maxMeanSpeed: 70,
 });
+
+/** A typical highway speed (m/s, common practice), for telling which unit mistake a ratio suggests. */
+const TYPICAL_SPEED = 25;
 
 /** Without road.xRange, no centre may lie further than this from x = 0 (m). */
 const MAX_ABS_X = 1e7;
@@ -168,7 +171,7 @@ export class PlausibilityChecker {
           this.add(
             "jump",
             {
-              problem: `jump of ${fmt(dist)} m in ${fmt(dt)} s from row ${rowOf(k - 1)} (implies ${fmt(implied)} m/s, more than ${o.maxSpeed} m/s)${unitHint(implied / o.maxSpeed, "position")}`,
+              problem: `jump of ${fmt(dist)} m in ${fmt(dt)} s from row ${rowOf(k - 1)} (implies ${fmt(implied)} m/s, more than ${o.maxSpeed} m/s)${unitHint(implied / TYPICAL_SPEED, "position")}`,
               column: c.x,
               value: xi,
             },
@@ -180,7 +183,13 @@ export class PlausibilityChecker {
         const s = Math.hypot(m.vx[k]!, m.vy[k]!);
         if (!(s <= o.maxSpeed)) {
           speedDone = true;
-          this.add("speed", { problem: `speed ${fmt(s)} m/s is more than ${o.maxSpeed} m/s${c.vx ? unitHint(s / o.maxSpeed, "speed") : ""}`, column: c.vx ?? c.x, value: c.vx ? m.vx[k] : s }, rowOf(k));
+          // The file's speed against the speed its positions imply (central difference over ±5
+          // samples, so that position noise barely matters): a ratio near 3.6 is km/h, near 2.237
+          // mph, near 3.281 ft/s (exact unit definitions).
+          const a0 = Math.max(0, k - 5);
+          const a1 = Math.min(n - 1, k + 5);
+          const implied = a1 > a0 ? Math.hypot(x[a1]! - x[a0]!, y[a1]! - y[a0]!) / (t[a1]! - t[a0]!) : NaN;
+          this.add("speed", { problem: `speed ${fmt(s)} m/s is more than ${o.maxSpeed} m/s${c.vx ? unitHint(s / implied, "speed") : ""}`, column: c.vx ?? c.x, value: c.vx ? m.vx[k] : s }, rowOf(k));
         }
       }
       if (!accDone) {
@@ -225,9 +234,8 @@ export class PlausibilityChecker {
     if (this.duration > 0) {
       const mean = this.distance / this.duration;
       if (!(mean >= o.minMeanSpeed && mean <= o.maxMeanSpeed)) {
-        const typical = 25; // m/s, a typical highway speed (common practice)
         this.findings.set("mean-speed", {
-          problem: `the tracks cover ${fmt(this.distance / 1000)} km along the road in ${fmt(this.duration / 3600)} vehicle-hours, a mean speed of ${fmt(mean)} m/s, outside ${o.minMeanSpeed}..${o.maxMeanSpeed} m/s${meanSpeedHint(mean / typical)}`,
+          problem: `the tracks cover ${fmt(this.distance / 1000)} km along the road in ${fmt(this.duration / 3600)} vehicle-hours, a mean speed of ${fmt(mean)} m/s, outside ${o.minMeanSpeed}..${o.maxMeanSpeed} m/s${meanSpeedHint(mean / TYPICAL_SPEED)}`,
           count: 1,
           unit: "recordings",
         });
@@ -274,19 +282,24 @@ function fmt(v: number): string {
   return String(Number(v.toPrecision(6)));
 }
 
-/** The file's unit that a too-large ratio most likely comes from (within a factor 1.5). */
+/**
+ * The unit mistake a ratio most likely comes from. Positions: implied speed / typical speed, ~1000 is
+ * mm and ~100 cm read as m (within a factor 1.5). Speeds: the file's speed / the speed its positions
+ * imply, 3.6 km/h, 3.281 ft/s, 2.237 mph (within 5 %, so that the three stay apart).
+ */
 function unitHint(ratio: number, what: "position" | "speed"): string {
-  const table: Array<[number, string]> =
-    what === "position"
-      ? [
-          [1000, `positions in mm (units.position: "mm")`],
-          [100, `positions in cm (units.position: "cm")`],
-        ]
-      : [
-          [3.6, `speeds in km/h (units.speed: "km/h")`],
-          [2.24, `speeds in mph (units.speed: "mph")`],
-        ];
-  for (const [f, hint] of table) if (ratio > f / 1.5 && ratio < f * 1.5) return `; are these ${hint}?`;
+  if (!Number.isFinite(ratio)) return "";
+  if (what === "position") {
+    if (ratio > 1000 / 1.5 && ratio < 1000 * 1.5) return `; are these positions in mm (units.position: "mm")?`;
+    if (ratio > 100 / 1.5 && ratio < 100 * 1.5) return `; are these positions in cm (units.position: "cm")?`;
+    return "";
+  }
+  const table: Array<[number, string]> = [
+    [3.6, `speeds in km/h (units.speed: "km/h")`],
+    [1 / 0.3048, `speeds in ft/s (units.speed: "ft/s")`],
+    [3125 / 1397, `speeds in mph (units.speed: "mph")`],
+  ];
+  for (const [f, hint] of table) if (Math.abs(ratio / f - 1) < 0.05) return `; the positions imply ${fmt(ratio)} times less: are these ${hint}?`;
   return "";
 }
 

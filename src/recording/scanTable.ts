@@ -124,7 +124,7 @@ export function scanTable(
     try {
       data = await fetchDoubles(c, sql);
     } catch (e) {
-      throw readError(e, file, format);
+      throw readError(e, file, format, await stoppedAt(c, file, format, sql, source, undefined, await expected.catch(() => NaN)));
     }
     // A streamed result ends early, without an error, when DuckDB stops on a malformed line or a
     // corrupted page (node-api's stream cannot report it). So the count is checked against the
@@ -135,7 +135,7 @@ export function scanTable(
       try {
         again = Number((await c.run(sql)).rowCount);
       } catch (e) {
-        throw readError(e, file, format, await stoppedAt(c, file, format, data.rows, want));
+        throw readError(e, file, format, await stoppedAt(c, file, format, sql, source, data.rows, want));
       }
       // CSV: blank lines and quoted line breaks make our newline count differ from the row count;
       // a complete materialized read that agrees with the stream settles it.
@@ -238,23 +238,41 @@ function readError(e: unknown, file: string, format: TracksFormat, where = ""): 
   return new InputError(`cannot read as ${format === "csv" ? "CSV" : "Parquet"}: ${first}${where}`, { file });
 }
 
-/** Where a stream that ended early stopped: Parquet row group (from the footer) or row. */
-async function stoppedAt(c: DuckDBConnection, file: string, format: TracksFormat, rows: number, want: number): Promise<string> {
-  if (format === "csv") return `; the scan stopped after ${rows} of ${want} data rows`;
+/**
+ * Where a read failed. CSV errors carry their own line. For Parquet, each row group (from the
+ * footer) is read again on its own, with the same columns, until one fails: that row group is named
+ * (a failure DuckDB reports from one of its threads says nothing about where it was).
+ */
+async function stoppedAt(
+  c: DuckDBConnection,
+  file: string,
+  format: TracksFormat,
+  sql: string,
+  source: string,
+  rows: number | undefined,
+  want: number,
+): Promise<string> {
+  const read = rows === undefined ? "" : `; the scan stopped after ${rows} of ${want} ${format === "csv" ? "data " : ""}rows`;
+  if (format === "csv") return read;
+  let groups: Array<Record<string, unknown>>;
   try {
-    const groups = await fetchRows(
+    groups = await fetchRows(
       c,
       `SELECT row_group_id AS g, CAST(any_value(row_group_num_rows) AS DOUBLE) AS n FROM parquet_metadata(${sqlString(file)}) GROUP BY row_group_id ORDER BY row_group_id`,
     );
-    let start = 0;
-    for (const gr of groups) {
-      const n = Number(gr.n);
-      if (rows < start + n)
-        return `; the scan stopped after ${rows} of ${want} rows, in row group ${Number(gr.g)} of ${groups.length} (rows ${start + 1}–${start + n})`;
-      start += n;
-    }
   } catch {
-    // the footer itself is unreadable: say what we know
+    return read; // the footer itself is unreadable: say what we know
   }
-  return `; the scan stopped after ${rows} of ${want} rows`;
+  const select = sql.slice(0, sql.lastIndexOf(` FROM ${source}`));
+  let start = 0;
+  for (const gr of groups) {
+    const n = Number(gr.n);
+    try {
+      await c.run(`${select} FROM ${source} WHERE file_row_number >= ${start} AND file_row_number < ${start + n}`);
+    } catch {
+      return `${read}; row group ${Number(gr.g)} of ${groups.length} (rows ${start + 1}–${start + n}) cannot be read`;
+    }
+    start += n;
+  }
+  return read;
 }
