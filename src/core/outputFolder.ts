@@ -132,6 +132,7 @@ export async function openOutputFolder(outPath: string): Promise<OutputFolder> {
     if (state === "done") return;
     // A swap cut short: put the old result back if the new one is not in place.
     if (!existsSync(out) && existsSync(previous)) renameSync(previous, out);
+    else rmSync(previous, { recursive: true, force: true }); // the swap was done: the old result goes
     rmSync(staging, { recursive: true, force: true });
     rmSync(lock, { force: true });
     state = "done";
