@@ -160,6 +160,14 @@ const cases: Case[] = [
   { name: "parquet-not-parquet", build: () => caseFile("pq-text", Buffer.from("PAR1 this is not parquet")), args: (f) => ["check", f], code: 2, message: /cannot read as Parquet/ },
   // Plausibility (point 3).
   { name: "frame-rate-1e9", build: () => caseFile("fr-huge", csvOf(lines), { ...road(), frameRate: 1e9 }), args: (f) => ["check", f], code: 2, message: /column "frameRate": implausible \(frame-rate\): the road's frameRate 1\.000e\+9 Hz is outside 1\.\.1000 Hz.*--accept frame-rate/ },
+  {
+    name: "frame-rate-1e9 --accept frame-rate: memory bounded before allocation",
+    build: () => caseFile("fr-huge2", csvOf(lines), { ...road(), frameRate: 1e9 }),
+    args: (f) => ["check", f, "--accept", "frame-rate"],
+    code: 2,
+    // ~30 s of recording at 1e9 Hz is ~3e10 frames, ~400 GiB for the frame clock: far past 24 GiB / 4.
+    message: /times from 0 s to \d+(\.\d+)? s at 1000000000 Hz make \d\.\d+e\+10 frames .* more than this machine can hold/,
+  },
   { name: "frame-rate-0.001", build: () => caseFile("fr-tiny", csvOf(lines), { ...road(), frameRate: 0.001 }), args: (f) => ["check", f], code: 2, message: /implausible \(frame-rate\): the road's frameRate 0\.001 Hz/ },
   {
     name: "times-in-ms-read-as-s",
