@@ -108,9 +108,9 @@ beforeAll(async () => {
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe("a killed plan run leaves the complete old or the complete new result", () => {
-  // The output steps in order: the writers (plan files, report, catalogue), the manifest, the swap
+  // The output steps in order: the writers (plan files, model.json, report, catalogue), the manifest, the swap
   // (before, between and after its two renames).
-  const steps = ["plan", "report", "catalogue", "manifest", "swap", "swap-middle", "cleanup"] as const;
+  const steps = ["plan", "model", "report", "catalogue", "manifest", "swap", "swap-middle", "cleanup"] as const;
   const jobs: Array<{ step: (typeof steps)[number]; signal: "SIGINT" | "SIGKILL" }> = [];
   for (const step of steps) for (const signal of ["SIGINT", "SIGKILL"] as const) jobs.push({ step, signal });
   const outcomes = new Map<string, { out: string; code: number | null; signal: NodeJS.Signals | null; stderr: string }>();
