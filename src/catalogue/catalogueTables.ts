@@ -17,7 +17,8 @@ const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : nul
 export function catalogueTables(r: PipelineResult): Table[] {
   const sc = r.scenarios.scenarios;
   const tcOf = new Array<string | null>(sc.length).fill(null);
-  for (const t of r.plan.testCases) tcOf[t.scenarioIndex] = t.id;
+  for (const t of r.plan.exploration.testCases) tcOf[t.scenarioIndex] = t.id;
+
   const scenarios: Table = {
     name: "scenarios",
     columns: [
@@ -44,6 +45,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "flags", type: "VARCHAR", values: sc.map((s) => s.criticality.flags.join(" ")) },
       { name: "type_key", type: "VARCHAR", values: r.typeKeys },
       { name: "cluster", type: "INTEGER", values: r.labels },
+      { name: "scenario_class", type: "VARCHAR", values: sc.map((s) => s.scenarioClass ?? null) },
+      { name: "logical_scenario", type: "VARCHAR", values: r.logicalScenarioOf },
+      { name: "parameters", type: "VARCHAR", values: sc.map((s) => (s.parameters ? JSON.stringify(s.parameters) : null)) },
       { name: "kmeans_cluster", type: "INTEGER", values: r.kmeans.labels },
       { name: "dbscan_label", type: "INTEGER", values: r.dbscan ? r.dbscan.labels : sc.map(() => null) },
       { name: "map_x", type: "DOUBLE", values: sc.map((_, i) => r.map.coords.data[2 * i]!) },
@@ -87,6 +91,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
     displacement: [] as (number | null)[],
     peakLat: [] as (number | null)[],
     tCross: [] as (number | null)[],
+    fromLane: [] as (number | null)[],
+    toLane: [] as (number | null)[],
+    boundaryMethod: [] as (string | null)[],
     flags: [] as string[],
   };
   r.maneuvers.forEach((rec, ri) => {
@@ -107,6 +114,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
         m.displacement.push(s.laneChange ? s.laneChange.displacement : null);
         m.peakLat.push(s.laneChange ? s.laneChange.peakLateralSpeed : null);
         m.tCross.push(s.laneChange ? s.laneChange.tCross : null);
+        m.fromLane.push(s.laneChange ? s.laneChange.fromLane : null);
+        m.toLane.push(s.laneChange ? s.laneChange.toLane : null);
+        m.boundaryMethod.push(s.laneChange ? s.laneChange.boundaryMethod : null);
         m.flags.push(s.flags.join(" "));
       }
   });
@@ -127,10 +137,13 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "lateral_displacement", type: "DOUBLE", values: m.displacement },
       { name: "peak_lateral_speed", type: "DOUBLE", values: m.peakLat },
       { name: "t_cross", type: "DOUBLE", values: m.tCross },
+      { name: "from_lane", type: "INTEGER", values: m.fromLane },
+      { name: "to_lane", type: "INTEGER", values: m.toLane },
+      { name: "boundary_method", type: "VARCHAR", values: m.boundaryMethod },
       { name: "flags", type: "VARCHAR", values: m.flags },
     ],
   };
-  const tc = r.plan.testCases;
+  const tc = r.plan.exploration.testCases;
   const testCases: Table = {
     name: "test_cases",
     columns: [
@@ -170,5 +183,33 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "vehicle_hours", type: "DOUBLE", values: r.recordings.map((x) => x.hours) },
     ],
   };
-  return [recordings, scenarios, features, featureInfo, maneuvers, testCases];
+  const ls = r.plan.logicalScenarios;
+  const logical: Table = {
+    name: "logical_scenarios",
+    columns: [
+      { name: "id", type: "VARCHAR", values: ls.map((l) => l.id) },
+      { name: "class", type: "VARCHAR", values: ls.map((l) => l.classId) },
+      { name: "name", type: "VARCHAR", values: ls.map((l) => l.name) },
+      { name: "scenarios", type: "INTEGER", values: ls.map((l) => l.scenarios) },
+      { name: "share", type: "DOUBLE", values: ls.map((l) => l.share) },
+      { name: "km", type: "DOUBLE", values: ls.map((l) => l.km) },
+      { name: "rate_per_1000km", type: "DOUBLE", values: ls.map((l) => l.ratePer1000km.rate) },
+      { name: "representative", type: "VARCHAR", values: ls.map((l) => l.representative.scenarioId) },
+      { name: "critical_anchors", type: "INTEGER", values: ls.map((l) => l.criticalAnchors.length) },
+      { name: "test_cases", type: "INTEGER", values: ls.map((l) => l.testCases) },
+    ],
+  };
+  const ct = r.plan.testCases;
+  const concrete: Table = {
+    name: "concrete_test_cases",
+    columns: [
+      { name: "id", type: "VARCHAR", values: ct.map((t) => t.id) },
+      { name: "logical_scenario", type: "VARCHAR", values: ct.map((t) => t.logicalScenario) },
+      { name: "kind", type: "VARCHAR", values: ct.map((t) => t.kind) },
+      { name: "scenario_id", type: "VARCHAR", values: ct.map((t) => t.scenarioId) },
+      { name: "weight", type: "DOUBLE", values: ct.map((t) => t.weight) },
+      { name: "parameter_values", type: "VARCHAR", values: ct.map((t) => JSON.stringify(t.values)) },
+    ],
+  };
+  return [recordings, scenarios, features, featureInfo, maneuvers, testCases, logical, concrete];
 }

@@ -41,7 +41,7 @@ export interface OutputFolder {
 }
 
 /** Names a roadsieve result folder may hold; a folder with anything else is not replaced. */
-const OURS = /^(manifest\.json|plan\.json|plan\.csv|model\.json|report\.html|catalogue\.duckdb(\.wal)?|catalogue|openscenario|\..*\.tmp)$/;
+const OURS = /^(manifest\.json|plan\.json|plan\.csv|logical-scenarios\.csv|model\.json|report\.html|catalogue\.duckdb(\.wal)?|catalogue|openscenario|\..*\.tmp)$/;
 
 /**
  * Test hook (internal): with ROADSIEVE_PAUSE_AT=<step> in the environment, a run stops at that step
