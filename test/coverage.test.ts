@@ -342,7 +342,7 @@ describe("zero-failure demonstration (Kalra & Paddock 2016)", () => {
     expect(miles / 1e6).toBeCloseTo(274.8, 1);
     expect(zeroFailureRateBound(miles, 0.95)).toBeCloseTo(1.09e-8, 20);
     expect(zeroFailureDistance(1.09e-8 / KM_PER_MILE) / miles).toBeCloseTo(KM_PER_MILE, 12);
-    expect(() => zeroFailureDistance(0)).toThrow(RangeError);
+    expect(() => zeroFailureDistance(0)).toThrow(InputError);
   });
 });
 

@@ -34,7 +34,7 @@ describe("roadsieve resim", () => {
     expect(r.stdout).toMatch(/test cases re-simulated/);
     const files = readdirSync(join(out, "resim"));
     for (const f of ["fidelity.csv", "fidelity.json", "fidelity.html"]) expect(files).toContain(f);
-    const n = readdirSync(join(out, "openscenario")).filter((f) => /^TC-\d+\.xosc$/.test(f)).length;
+    const n = readdirSync(join(out, "openscenario")).filter((f) => /^TC-[0-9a-f]+\.xosc$/.test(f)).length;
     expect(readFileSync(join(out, "resim", "fidelity.csv"), "utf8").trim().split("\n").length).toBe(n + 1);
     expect(files.filter((f) => f.endsWith(".closed-loop.csv")).length).toBe(n);
   });

@@ -52,7 +52,7 @@ export async function main(argv: string[]): Promise<number> {
     return 0;
   }
   try {
-    return await cmd.run(rest);
+    return await cmd.run(joinNegativeValues(rest));
   } catch (e) {
     if (e instanceof InputError || e instanceof UsageError || isParseArgsError(e)) {
       process.stderr.write(`\nroadsieve ${cmd.name}: ${(e as Error).message.split("\n")[0]}\n`);
@@ -60,6 +60,23 @@ export async function main(argv: string[]): Promise<number> {
     }
     throw e;
   }
+}
+
+/**
+ * "--budget -1": node's parseArgs takes "-1" for an option and reports "argument is ambiguous";
+ * joining a negative number to the option before it lets the option's own check name the problem.
+ */
+function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i]!;
+    const next = argv[i + 1];
+    if (a.startsWith("--") && !a.includes("=") && next !== undefined && /^-(\d|\.\d|Infinity)/.test(next)) {
+      out.push(`${a}=${next}`);
+      i++;
+    } else out.push(a);
+  }
+  return out;
 }
 
 function isParseArgsError(e: unknown): boolean {

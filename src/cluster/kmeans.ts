@@ -2,7 +2,7 @@ import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import type { Progress } from "../core/progress.js";
-import { checkInt, checkMatrix, checkNumber, checkThreads, checkWeights, notFinite } from "./_validate.js";
+import { checkInt, checkMagnitude, checkMatrix, checkNumber, checkThreads, checkWeights, notFinite } from "./_validate.js";
 import { KMEANS_KERNEL_SOURCE, OP_HAMERLY, OP_INERTIA, OP_INIT, OP_LLOYD } from "./_kmeansKernel.js";
 import { Team, autoThreads, isShared, ref, sharedF64, sharedI32 } from "./_team.js";
 import { seedKMeansPlusPlus } from "./kmeansPlusPlus.js";
@@ -143,16 +143,23 @@ function scanRows(X: Matrix, tol: number): number {
   const { rows: n, cols: d, data } = X;
   const s1 = new Float64Array(d);
   const s2 = new Float64Array(d);
+  let big = 0;
+  let at = -1;
   for (let i = 0; i < n; i++) {
     const o = i * d;
     for (let t = 0; t < d; t++) {
       const v = data[o + t]!;
       if (v - v !== 0) throw notFinite("X", d, o + t, v);
+      if (v > big || -v > big) {
+        big = v < 0 ? -v : v;
+        at = o + t;
+      }
       const a = v - data[t]!;
       s1[t]! += a;
       s2[t]! += a * a;
     }
   }
+  checkMagnitude("X", X, big, at);
   let s = 0;
   for (let t = 0; t < d; t++) {
     const m = s1[t]! / n;
@@ -242,6 +249,10 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     team.close();
   }
   const res = best!;
+  // Bounded inputs cannot overflow (checkMatrix); this catches what slips through (e.g. explicit
+  // initial centres far outside the data) instead of returning NaN inertia and arbitrary labels.
+  if (!Number.isFinite(res.inertia))
+    throw new InputError(`k-means: the inertia is ${res.inertia} (squared distances overflowed); rescale the data and the initial centres`);
   if (nInit > 1) warnings.push(...bestWarnings.map((w) => `best restart: ${w}`));
   else warnings.push(...bestWarnings);
   return {

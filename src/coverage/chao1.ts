@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { checkLevel } from "../exposure/poissonInterval.js";
 import { normalQuantile } from "../exposure/gamma.js";
 import { frequencyCounts, type FrequencyCounts } from "./abundance.js";
@@ -57,7 +58,7 @@ export function chao1F0(fc: Pick<FrequencyCounts, "n" | "f1" | "f2">, variant: C
  */
 export function chao1(counts: ArrayLike<number>, options: Chao1Options = {}): Chao1Result {
   const variant = options.variant ?? "bias-corrected";
-  if (variant !== "bias-corrected" && variant !== "classic") throw new RangeError(`variant="${String(variant)}" should be "bias-corrected" or "classic"`);
+  if (variant !== "bias-corrected" && variant !== "classic") throw new InputError(`variant="${String(variant)}" should be "bias-corrected" or "classic"`);
   const factor = options.finiteSampleFactor ?? false;
   const level = options.level ?? 0.95;
   checkLevel(level);

@@ -138,7 +138,7 @@ export function describeExposure(ctx: ExposureContext, indices: ArrayLike<number
   const seenDrive = new Set<number>();
   for (let k = 0; k < m; k++) {
     const i = indices[k]!;
-    if (!(Number.isInteger(i) && i >= 0 && i < ctx.n)) throw new RangeError(`scenario index ${i} is outside [0, ${ctx.n})`);
+    if (!(Number.isInteger(i) && i >= 0 && i < ctx.n)) throw new InputError(`scenario index ${i} is outside [0, ${ctx.n})`);
     seenDrive.add(ctx.driveOf[i]!);
   }
   const km = compensatedSum(ctx.km, indices);

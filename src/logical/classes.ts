@@ -3,6 +3,7 @@
  * table holding each class's id, name, definition and parameters (names and SI units fixed in
  * CONTRACT §1; docs/logical.md explains how each parameter is measured).
  */
+import { InputError } from "../core/errors.js";
 
 export const SCENARIO_CLASS_IDS = [
   "free-driving",
@@ -191,7 +192,7 @@ const BY_ID = new Map<string, ScenarioClass>(SCENARIO_CLASSES.map((c) => [c.id, 
 /** The class of an id; throws for an unknown id. */
 export function scenarioClass(id: ScenarioClassId): ScenarioClass {
   const c = BY_ID.get(id);
-  if (!c) throw new RangeError(`unknown scenario class "${id}"`);
+  if (!c) throw new InputError(`unknown scenario class "${id}"`);
   return c;
 }
 

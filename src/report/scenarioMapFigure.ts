@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import type { Matrix } from "../core/matrix.js";
 import { ALERT_COLOUR, FIGURE_CONFIG, baseLayout, clusterColour, round, type Figure } from "./figure.js";
 
@@ -23,8 +24,8 @@ export interface ScenarioMapInput {
  */
 export function scenarioMapFigure(input: ScenarioMapInput): Figure {
   const { coords, labels } = input;
-  if (coords.cols !== 2) throw new RangeError(`coords.cols=${coords.cols} should be 2`);
-  if (labels.length !== coords.rows) throw new RangeError(`labels.length=${labels.length} should equal coords.rows=${coords.rows}`);
+  if (coords.cols !== 2) throw new InputError(`coords.cols=${coords.cols} should be 2`);
+  if (labels.length !== coords.rows) throw new InputError(`labels.length=${labels.length} should equal coords.rows=${coords.rows}`);
   const groups = new Map<number, number[]>();
   for (let i = 0; i < labels.length; i++) {
     const l = labels[i]!;

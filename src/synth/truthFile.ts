@@ -21,19 +21,19 @@ export function encodeRuns(codes: Int8Array): number[] {
 
 /** Inverse of encodeRuns; `frames` checks the total length. */
 export function decodeRuns(runs: number[], frames: number, what = "runs"): Int8Array {
-  if (!Array.isArray(runs) || runs.length % 2 !== 0) throw new RangeError(`${what} should be [code, count, …] pairs`);
+  if (!Array.isArray(runs) || runs.length % 2 !== 0) throw new InputError(`${what} should be [code, count, …] pairs`);
   const out = new Int8Array(frames);
   let k = 0;
   for (let i = 0; i < runs.length; i += 2) {
     const code = runs[i]!;
     const count = runs[i + 1]!;
     if (!Number.isInteger(code) || code < 0 || code > 127 || !Number.isInteger(count) || count < 1)
-      throw new RangeError(`${what}: pair ${i / 2} = [${code}, ${count}] should be [code 0..127, count >= 1]`);
-    if (k + count > frames) throw new RangeError(`${what} cover more than frames=${frames}`);
+      throw new InputError(`${what}: pair ${i / 2} = [${code}, ${count}] should be [code 0..127, count >= 1]`);
+    if (k + count > frames) throw new InputError(`${what} cover more than frames=${frames}`);
     out.fill(code, k, k + count);
     k += count;
   }
-  if (k !== frames) throw new RangeError(`${what} cover ${k} frames, expected frames=${frames}`);
+  if (k !== frames) throw new InputError(`${what} cover ${k} frames, expected frames=${frames}`);
   return out;
 }
 

@@ -28,7 +28,7 @@ export const checkCommand: Command = {
       allowPositionals: true,
     });
     if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet)");
-    const base = await recordingOptions(values);
+    const base = await recordingOptions(values, positionals.length);
     for (const file of positionals) {
       const display = progressDisplay(process.stderr, values.quiet);
       const rec = await readRecording(file, { ...base, progress: display.progress });

@@ -1,4 +1,5 @@
-import { resolve } from "node:path";
+import { join, resolve } from "node:path";
+import { openOutputFolder } from "../../core/outputFolder.js";
 import { parseArgs } from "node:util";
 import type { Progress } from "../../core/progress.js";
 import { collectExtractions } from "../../extract/collectExtractions.js";
@@ -144,10 +145,12 @@ export interface PlanInputOptions {
  */
 export async function planFromFiles(args: string[], readOptions: ReadRecordingOptions, v: PipelineCliValues, defaultOut: string, inputOptions: PlanInputOptions = {}): Promise<number> {
   const options = resolvePipelineOptions(pipelineOptions(v));
-  const out = resolve(v.out ?? defaultOut);
+  // --out is checked (and locked) before any work: a bad folder fails in a second, not after the run.
+  const folder = await openOutputFolder(resolve(v.out ?? defaultOut));
   const display = progressDisplay(process.stderr, Boolean(v.quiet));
   const progress: Progress = display.progress;
   try {
+    for (const w of folder.warnings) process.stderr.write(`warning: ${w}\n`);
     const { inputs, warnings: inputWarnings } = await planInputs(args, { allowIncomplete: inputOptions.allowIncomplete });
     const t0 = performance.now();
     const extracted = await collectExtractions(inputs, readOptions, options, {
@@ -178,22 +181,27 @@ export async function planFromFiles(args: string[], readOptions: ReadRecordingOp
       recordings = [];
       for (const s of result.recordings) if (used.has(s.id)) recordings.push(await readRecording(s.source, { ...readOptions, id: s.id, progress }));
     }
-    const written = await writeOutputs(result, out, {
+    const written = await writeOutputs(result, folder.dir, {
       catalogue: !v["no-catalogue"],
       parquet: Boolean(v.parquet),
       openScenario: recordings,
       progress,
     });
+    const manifest = await folder.commit(result.recordings.map((r) => ({ path: r.source, sha256: r.checksum })));
     display.done();
     process.stdout.write(`${result.plan.summary}\n\n`);
     const t = Object.entries(result.timings)
       .map(([k, s]) => `${k} ${s.toFixed(2)} s`)
       .join(", ");
     process.stdout.write(`timings: ${t}\n`);
-    for (const w of written.files) process.stdout.write(`wrote ${w}\n`);
+    for (const f of manifest.files) process.stdout.write(`wrote ${join(folder.out, f.path)}\n`);
+    process.stdout.write(`wrote ${join(folder.out, "manifest.json")}\n`);
     for (const w of inputWarnings) process.stderr.write(`warning: ${w}\n`);
     for (const w of written.warnings) process.stderr.write(`warning: ${w}\n`);
     return 0;
+  } catch (e) {
+    await folder.abort();
+    throw e;
   } finally {
     display.done();
   }
@@ -212,6 +220,9 @@ recorded medoid per cluster, keep rare and critical scenarios on their own, and 
   DIR/model.json       the fitted clustering, for roadsieve assign (new recordings into this plan)
   DIR/report.html      a self-contained report with charts (opens offline)
   DIR/catalogue.duckdb every scenario, feature, maneuver and test case, for SQL
+  DIR/manifest.json    every file with its size and SHA-256, the tool version and the inputs
+DIR is replaced as a whole at the end (written beside it first); a second run into the same DIR
+while one is going is refused.
 
 Options:
 ${RECORDING_HELP}
@@ -240,7 +251,7 @@ export const planCommand: Command = {
       allowPositionals: true,
     });
     if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet), shard or shard folder; roadsieve plan --help");
-    const readOptions = await recordingOptions(values);
+    const readOptions = await recordingOptions(values, positionals.length);
     const workers = numberOption("workers", values.workers, { integer: true, min: 1 });
     return planFromFiles(positionals, readOptions, values, "out", { workers, allowIncomplete: values["allow-incomplete"] });
   },
