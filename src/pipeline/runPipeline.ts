@@ -64,6 +64,7 @@ export interface PipelineResult {
   plan: TestPlan;
   /** Seconds per stage. */
   timings: Record<string, number>;
+  /** Every warning of the run (recordings, stages, plan): the same list as plan.warnings. */
   warnings: string[];
 }
 
@@ -204,11 +205,15 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
             weightBy: o.weightBy,
           },
         },
+        // Every warning of the run goes into plan.json, so that it and the report list the same.
+        upstreamWarnings: [...summaries.flatMap((s) => s.warnings.map((w) => `${s.id}: ${w}`)), ...warnings, ...map.warnings.map((w) => `2-D map: ${w}`)],
         progress,
       },
       o.plan,
     ),
   );
+  // The run's warnings are the plan's: the recordings', the stages' and the plan's own, in order.
+  warnings.length = 0;
   warnings.push(...plan.warnings);
   return {
     options: o,
