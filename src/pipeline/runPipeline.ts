@@ -111,7 +111,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
       seconds += s.seconds;
     }
     const recWarnings = [...rec.warnings];
-    for (const tm of m) for (const w of tm.warnings) recWarnings.push(`track ${tm.trackId}: ${w}`);
+    for (const tm of m) for (const w of tm.warnings) recWarnings.push(w.startsWith(`track ${tm.trackId}:`) ? w : `track ${tm.trackId}: ${w}`);
     for (const w of set.warnings) recWarnings.push(w);
     summaries.push({
       id: rec.id,
