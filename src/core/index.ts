@@ -7,3 +7,4 @@ export type { Progress, ProgressEvent } from "./progress.js";
 export { silentProgress, throttleProgress } from "./progress.js";
 export { writeFileAtomic, sha256File, sha256Text } from "./io.js";
 export { VERSION } from "./version.js";
+export { DEFAULTS } from "./defaults.js";

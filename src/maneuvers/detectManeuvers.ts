@@ -194,7 +194,7 @@ function pushSegments(
     // A maneuver cut by the end of the observed run has an unknown true extent.
     if (a === s && code !== keep) flags.push("at-track-start");
     if (b === e - 1 && code !== keep) flags.push("at-track-end");
-    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.harshDecel) flags.push("harsh-braking");
+    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.decelAbove) flags.push("harsh-braking");
     out.push({
       axis,
       maneuver: axis === "longitudinal" ? LONGITUDINAL[code]! : LATERAL[code]!,

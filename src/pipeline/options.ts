@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import type { EmbedOptions } from "../embed/features.js";
 import type { ManeuverOptions } from "../maneuvers/options.js";
@@ -52,12 +53,12 @@ export interface ResolvedPipelineOptions {
 }
 
 export const PIPELINE_DEFAULTS = {
-  seed: 1,
-  kRange: [2, 12] as [number, number],
-  nInit: 4,
+  seed: DEFAULTS.seed,
+  kRange: [DEFAULTS.kRange[0], DEFAULTS.kRange[1]] as [number, number],
+  nInit: DEFAULTS.nInit,
   dbscanVariance: 0.9,
   dbscanMaxComponents: 8,
-  map: "umap" as MapMethod,
+  map: DEFAULTS.map as MapMethod,
   weightBy: "km" as const,
 };
 

@@ -89,7 +89,7 @@ export function planCatalogue(
   if (o.k === null) {
     const kMax = Math.min(o.kRange[1], n - 1);
     const kMin = Math.min(o.kRange[0], kMax);
-    sweep = timed("choose k", () => sweepK(X, { kMin, kMax, rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
+    sweep = timed("choose k", () => sweepK(X, { kRange: [kMin, kMax], rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
     k = sweep.suggestedK;
     warnings.push(...sweep.warnings);
   }

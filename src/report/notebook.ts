@@ -2,10 +2,16 @@
  * The notebook adapter: the only place that talks to tslab's display. Everything else in report/
  * builds figures and HTML as data. tslab is loaded lazily so that the CLI and tests never pay for
  * (or depend on) the kernel.
+ *
+ * Rich display: `show(x)` draws a figure, or shows a plan, a pipeline result, a table, a logical
+ * scenario (or a list of them) as a readable HTML table. Inside a tslab kernel the same happens when
+ * such a value is the last value of a cell: tslab prints that value with console.log, and this
+ * module (when loaded in a tslab kernel) routes console.log of a single roadsieve value to show.
  */
 import { createRequire } from "node:module";
 import type { Figure } from "./figure.js";
-import { escapeHtml, scriptJson, type ReportTable } from "./html.js";
+import { cellText, escapeHtml, scriptJson, type ReportCell, type ReportTable } from "./html.js";
+import { describeTypeKey } from "./describe.js";
 import { plotlySource } from "./plotlySource.js";
 
 interface HtmlDisplay {
@@ -16,13 +22,16 @@ let display: HtmlDisplay | undefined;
 let plotlySent = false;
 let counter = 0;
 
+const NOT_IN_KERNEL =
+  "roadsieve's notebook display works only inside a running tslab Jupyter kernel; from scripts, write the HTML report instead: await writeReport(result, \"report.html\") (or write(result, dir) for every output)";
+
 function tslabDisplay(): HtmlDisplay {
   if (display) return display;
   let mod: { display?: HtmlDisplay };
   try {
     mod = createRequire(import.meta.url)("tslab") as { display?: HtmlDisplay };
   } catch (e) {
-    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); outside Jupyter, write a report with writeReport() instead`);
+    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); ${NOT_IN_KERNEL}`);
   }
   if (!mod.display) throw new Error("tslab.display is missing; is this the tslab kernel?");
   display = mod.display;
@@ -34,8 +43,7 @@ function emit(html: string): void {
     tslabDisplay().html(html);
   } catch (e) {
     const msg = (e as Error).message;
-    if (/not ready/i.test(msg))
-      throw new Error("roadsieve's notebook display works only inside a running tslab Jupyter kernel; from scripts, write an HTML report instead (writeReport)");
+    if (/not ready/i.test(msg)) throw new Error(NOT_IN_KERNEL);
     throw e;
   }
 }
@@ -47,8 +55,7 @@ export function loadPlotly(force = false): void {
   plotlySent = true;
 }
 
-/** Show a plotly figure in the notebook. */
-export function show(figure: Figure): void {
+function showFigure(figure: Figure): void {
   loadPlotly();
   const id = `roadsieve-plot-${process.pid}-${counter++}`;
   emit(`<div id="${id}"></div>
@@ -62,15 +69,107 @@ export function show(figure: Figure): void {
 </script>`);
 }
 
+const STYLE =
+  "<style>.rs-nb table{border-collapse:collapse;font-size:12px}.rs-nb th,.rs-nb td{border:1px solid #dde2e8;padding:3px 6px;text-align:left;vertical-align:top}.rs-nb th{background:#f7f8fa}.rs-nb td.num{text-align:right}.rs-nb .lbl{color:#5b6673;font-size:11px}.rs-nb p{margin:4px 0}</style>";
+
+function cellHtml(c: ReportCell): string {
+  if (typeof c === "number") return `<td class="num">${escapeHtml(String(c))}</td>`;
+  if (typeof c === "string") return `<td>${escapeHtml(c)}</td>`;
+  if ("code" in c) return `<td><code>${escapeHtml(c.code)}</code>${c.label ? `<div class="lbl">${escapeHtml(c.label)}</div>` : ""}</td>`;
+  return `<td>${c.lines.map((l) => `<div>${escapeHtml(l)}</div>`).join("")}</td>`;
+}
+
+/** A table as notebook HTML (first maxRows rows, default 20). */
+export function tableHtml(table: ReportTable, maxRows = table.maxRows ?? 20): string {
+  const rows = table.rows.slice(0, maxRows);
+  return `${STYLE}<div class="rs-nb">${table.caption ? `<p><b>${escapeHtml(table.caption)}</b></p>` : ""}${(table.notes ?? []).map((n) => `<p>${escapeHtml(n)}</p>`).join("")}<table><tr>${table.columns
+    .map((c) => `<th>${escapeHtml(c)}</th>`)
+    .join("")}</tr>${rows.map((r) => `<tr>${r.map(cellHtml).join("")}</tr>`).join("")}</table>${table.rows.length > maxRows ? `<p><i>${table.rows.length - maxRows} more rows</i></p>` : ""}</div>`;
+}
+
+const fix = (x: unknown, d = 2): string => (typeof x === "number" && Number.isFinite(x) ? x.toFixed(d) : "–");
+const pct = (x: unknown): string => (typeof x === "number" ? `${(100 * x).toFixed(2)} %` : "–");
+
+type Obj = Record<string, unknown>;
+const isObj = (x: unknown): x is Obj => typeof x === "object" && x !== null && !Array.isArray(x) && !ArrayBuffer.isView(x);
+const isFigure = (x: unknown): x is Figure => isObj(x) && Array.isArray(x.data) && isObj(x.layout);
+const isTable = (x: unknown): x is ReportTable => isObj(x) && Array.isArray(x.columns) && Array.isArray(x.rows);
+const isPlan = (x: unknown): x is Obj & { testCases: Obj[]; summary: string } => isObj(x) && typeof x.schemaVersion === "string" && Array.isArray(x.testCases);
+const isResult = (x: unknown): x is Obj & { plan: Obj } => isObj(x) && isPlan(x.plan) && isObj(x.scenarios);
+/** A logical scenario of plan schema 2 (CONTRACT: classId, className, parameters[] with p05/p50/p95). */
+const isLogical = (x: unknown): x is Obj & { parameters: Obj[] } => isObj(x) && typeof x.classId === "string" && Array.isArray(x.parameters);
+
+/** The test cases of a plan as a table (why each is there, what happens, what it stands for). */
+export function planTable(plan: { testCases: Obj[] }): ReportTable {
+  return {
+    caption: `${plan.testCases.length} test cases`,
+    columns: ["test case", "role", "why it is in the plan", "what happens", "share of km", "shortest TTC (s)", "shortest headway (s)", "hardest braking (m/s²)", "scenarios"],
+    rows: plan.testCases.map((t): ReportCell[] => {
+      const c = (t.criticality ?? {}) as Obj;
+      const key = typeof t.typeKey === "string" ? t.typeKey : null;
+      return [
+        String(t.id),
+        String(t.role ?? t.kind ?? ""),
+        { lines: Array.isArray(t.reasons) ? (t.reasons as string[]) : [] },
+        key ? { code: key, label: describeTypeKey(key) } : String(t.logicalScenario ?? ""),
+        pct(t.share),
+        fix(c.minTtc),
+        fix(c.minThw),
+        fix(c.maxDecel),
+        typeof t.memberCount === "number" ? t.memberCount : "–",
+      ];
+    }),
+  };
+}
+
+/** A logical scenario's parameters as a table (range, 5/50/95 % quantiles, how many measurable). */
+export function logicalScenarioTable(ls: Obj & { parameters: Obj[] }): ReportTable {
+  return {
+    caption: `${String(ls.name ?? ls.id)} (${String(ls.className ?? ls.classId)}): ${String(ls.scenarios ?? "?")} scenarios, ${pct(ls.share)} of the km`,
+    columns: ["parameter", "unit", "min", "5 %", "median", "95 %", "max", "measurable in", "meaning"],
+    rows: ls.parameters.map((p): ReportCell[] => [String(p.name), String(p.unit ?? ""), fix(p.min), fix(p.p05), fix(p.p50), fix(p.p95), fix(p.max), typeof p.measurable === "number" ? p.measurable : "–", String(p.description ?? "")]),
+  };
+}
+
+/** Plain objects in a list (same keys) as a table of their simple fields. */
+function listTable(items: Obj[]): ReportTable {
+  const keys = Object.keys(items[0]!).filter((k) => items.every((it) => ["string", "number", "boolean"].includes(typeof it[k]) || it[k] === null));
+  return { columns: keys, rows: items.map((it) => keys.map((k): ReportCell => (typeof it[k] === "number" ? (it[k] as number) : String(it[k])))) };
+}
+
+/** The HTML a value shows as in a notebook, or null when it is not a value roadsieve knows. */
+export function richHtml(value: unknown): string | null {
+  if (isTable(value)) return tableHtml(value);
+  if (isResult(value)) return richHtml(value.plan);
+  if (isPlan(value)) {
+    const logical = Array.isArray(value.logicalScenarios) ? (value.logicalScenarios as Obj[]) : [];
+    const parts = [`${STYLE}<div class="rs-nb">${value.summary.split(/\n+/).map((p) => `<p>${escapeHtml(p)}</p>`).join("")}</div>`];
+    if (logical.length > 0) parts.push(tableHtml(listTable(logical.map((l) => ({ id: l.id, name: l.name, class: l.className ?? l.classId, share: l.share, scenarios: l.scenarios })))));
+    parts.push(tableHtml(planTable(value), 15));
+    return parts.join("");
+  }
+  if (isLogical(value)) return tableHtml(logicalScenarioTable(value));
+  if (Array.isArray(value) && value.length > 0 && value.every(isLogical))
+    return tableHtml(listTable(value.map((l) => ({ id: l.id, name: l.name, class: l.className ?? l.classId, share: l.share, scenarios: l.scenarios }))));
+  if (Array.isArray(value) && value.length > 0 && value.every((x) => isObj(x) && typeof x.id === "string" && Array.isArray(x.reasons))) return tableHtml(planTable({ testCases: value as Obj[] }));
+  return null;
+}
+
+/**
+ * Show a value in the notebook: a plotly figure is drawn; a plan, a pipeline result, a table, a
+ * logical scenario or a list of test cases is shown as a readable table; text as paragraphs.
+ */
+export function show(value: Figure | ReportTable | object | string | string[]): void {
+  if (isFigure(value)) return showFigure(value);
+  if (typeof value === "string" || (Array.isArray(value) && value.every((v) => typeof v === "string"))) return showText(value as string | string[]);
+  const html = richHtml(value);
+  if (html === null) throw new TypeError("show() takes a figure, a plan, a pipeline result, a table ({ columns, rows }), a logical scenario, a list of test cases, or text");
+  emit(html);
+}
+
 /** Show a table (first maxRows rows). */
 export function showTable(table: ReportTable): void {
-  const max = table.maxRows ?? 20;
-  const rows = table.rows.slice(0, max);
-  emit(
-    `${table.caption ? `<p><b>${escapeHtml(table.caption)}</b></p>` : ""}<table><tr>${table.columns.map((c) => `<th>${escapeHtml(c)}</th>`).join("")}</tr>${rows
-      .map((r) => `<tr>${r.map((v) => `<td style="text-align:${typeof v === "number" ? "right" : "left"}">${escapeHtml(String(v))}</td>`).join("")}</tr>`)
-      .join("")}</table>${table.rows.length > max ? `<p><i>${table.rows.length - max} more rows</i></p>` : ""}`,
-  );
+  emit(tableHtml(table));
 }
 
 /** Show a paragraph of text (escaped) or a list of lines. */
@@ -78,3 +177,35 @@ export function showText(text: string | string[]): void {
   const lines = Array.isArray(text) ? text : [text];
   emit(lines.map((l) => `<p>${escapeHtml(l)}</p>`).join(""));
 }
+
+/** Plain text of a table (for logs). */
+export function tableText(table: ReportTable): string {
+  return [table.columns.join(" | "), ...table.rows.map((r) => r.map(cellText).join(" | "))].join("\n");
+}
+
+let hooked = false;
+/**
+ * Route console.log of one roadsieve value (what tslab does with a cell's last value) to the rich
+ * display. Installed automatically when this module loads inside a tslab kernel; everything else
+ * is printed as before.
+ */
+export function enableRichDisplay(): void {
+  if (hooked) return;
+  hooked = true;
+  const original = console.log.bind(console);
+  console.log = (...args: unknown[]): void => {
+    if (args.length === 1 && typeof args[0] === "object" && args[0] !== null) {
+      const v = args[0];
+      const html = isFigure(v) ? null : richHtml(v);
+      try {
+        if (isFigure(v)) return showFigure(v);
+        if (html !== null) return emit(html);
+      } catch {
+        /* not in a kernel after all: print as usual */
+      }
+    }
+    original(...args);
+  };
+}
+
+if (process.argv.some((a) => /[\\/]tslab([\\/]|$)|tslab\.js$|^tslab$/.test(a)) || process.env.ROADSIEVE_RICH_DISPLAY === "1") enableRichDisplay();
