@@ -29,7 +29,8 @@ const RULES: { rule: CriticalRule; symbol: string; name: (t: CriticalityThreshol
 
 /** Labelled ticks for a log axis of seconds. */
 function logTicks(lo: number, cap: number): { tickvals: number[]; ticktext: string[] } {
-  const vals = [0.05, 0.1, 0.2, 0.5, 1, 2, 5, 10, 20, 50].filter((v) => v >= lo * 0.999 && v < cap);
+  // Leave out ticks too close to the cap on a log axis (50 beside 60 would overlap).
+  const vals = [0.05, 0.1, 0.2, 0.5, 1, 2, 5, 10, 20, 50].filter((v) => v >= lo * 0.999 && v <= cap / 1.5);
   return { tickvals: [...vals, cap], ticktext: [...vals.map((v) => String(v)), `${cap}+ / none`] };
 }
 
@@ -82,7 +83,7 @@ export function criticalityFigure(points: CriticalityPoint[], thresholds: Critic
       height: 480,
       showlegend: true,
       legend: { orientation: "h", y: -0.18 },
-      margin: { l: 70, r: 20, t: 50, b: 90 },
+      margin: { l: 95, r: 20, t: 50, b: 90 },
     }),
     config: FIGURE_CONFIG,
   };

@@ -185,27 +185,38 @@ export function tableText(table: ReportTable): string {
 
 let hooked = false;
 /**
- * Route console.log of one roadsieve value (what tslab does with a cell's last value) to the rich
- * display. Installed automatically when this module loads inside a tslab kernel; everything else
- * is printed as before.
+ * Make a roadsieve value that is the last value of a cell (or is console.log-ged alone) show as
+ * rich HTML. tslab prints a cell's last value with a console.log it captured at start-up, which
+ * formats through util.inspect; so the hook is util.inspect's custom-inspection symbol, defined
+ * (non-enumerable, invisible to Object.keys, for…in and JSON) on Object.prototype. For any value
+ * that is not a figure, plan, result, table or logical scenario it formats exactly as before.
+ * Installed automatically only when this module loads inside a tslab kernel.
  */
 export function enableRichDisplay(): void {
   if (hooked) return;
   hooked = true;
-  const original = console.log.bind(console);
-  console.log = (...args: unknown[]): void => {
-    if (args.length === 1 && typeof args[0] === "object" && args[0] !== null) {
-      const v = args[0];
-      const html = isFigure(v) ? null : richHtml(v);
+  const custom = Symbol.for("nodejs.util.inspect.custom");
+  Object.defineProperty(Object.prototype, custom, {
+    configurable: true,
+    enumerable: false,
+    writable: true,
+    value: function richInspect(this: unknown, _depth: number, options: Record<string, unknown>, inspect: (v: unknown, o: Record<string, unknown>) => string): string {
       try {
-        if (isFigure(v)) return showFigure(v);
-        if (html !== null) return emit(html);
+        if (isFigure(this)) {
+          showFigure(this);
+          return "";
+        }
+        const html = richHtml(this);
+        if (html !== null) {
+          emit(html);
+          return "";
+        }
       } catch {
-        /* not in a kernel after all: print as usual */
+        /* not in a running kernel after all: print as text */
       }
-    }
-    original(...args);
-  };
+      return inspect(this, { ...options, customInspect: false });
+    },
+  });
 }
 
 if (process.argv.some((a) => /[\\/]tslab([\\/]|$)|tslab\.js$|^tslab$/.test(a)) || process.env.ROADSIEVE_RICH_DISPLAY === "1") enableRichDisplay();
