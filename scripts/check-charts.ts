@@ -24,7 +24,7 @@ try {
     await new Promise((r) => setTimeout(r, 1500));
     const r = await page.evaluate<{ charts: number; drawn: number; missing: number }>(`(() => {
       const charts = [...document.querySelectorAll(".js-plotly-plot, div[id^='roadsieve-plot-'], .plot")];
-      const drawn = charts.filter((c) => c.querySelector("svg.main-svg") && c.querySelectorAll("path.point, .barlayer path, path.js-line").length > 0).length;
+      const drawn = charts.filter((c) => c.querySelector("svg.main-svg") && c.querySelectorAll("path.point, .barlayer path, path.js-line, .heatmaplayer image").length > 0).length;
       const missing = [...document.querySelectorAll("div")].filter((d) => /plotly\\.js is not loaded/.test(d.textContent || "") && d.children.length === 0).length;
       return { charts: new Set(charts).size, drawn, missing };
     })()`);

@@ -1,48 +1,82 @@
-/**
- * The notebook adapter's rich display, outside a kernel: the HTML a plan, a table and a logical
- * scenario show as, and the inspection hook that makes a cell's last value show that way while every
- * other value prints exactly as before.
- */
-import { inspect } from "node:util";
-import { describe, expect, it } from "vitest";
-import { Rng } from "../src/core/rng.js";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import * as api from "../src/index.js";
+import { clusteringModelToJson } from "../src/cluster/clusteringModel.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
-import { enableRichDisplay, richHtml, tableHtml } from "../src/report/notebook.js";
-import { generateTraffic } from "../src/synth/generateTraffic.js";
+import { testPlanToJson } from "../src/plan/planJson.js";
+import { readRecording } from "../src/recording/readRecording.js";
+import { OUTSIDE_JUPYTER } from "../src/report/notebook.js";
 
-const traffic = generateTraffic({ vehicleKm: 10, hardBrakingRate: 0.2, recordingId: "notebook-test" }, new Rng(5));
-const result = runPipeline([traffic.recording], { seed: 1, map: "pca", k: 3 });
+const root = join(import.meta.dirname, "..");
+const source = readFileSync(join(root, "scripts/notebook-src/01-recordings-to-test-plan.txt"), "utf8");
+const dir = mkdtempSync(join(tmpdir(), "roadsieve-notebook-"));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-describe("rich display", () => {
-  it("shows a plan as its summary and a table of test cases with why each is there", () => {
-    const html = richHtml(result.plan)!;
-    expect(html).not.toBeNull();
-    for (const t of result.plan.testCases.slice(0, 15)) {
-      expect(html).toContain(`<td>${t.id}</td>`);
-      for (const r of t.reasons) expect(html).toContain(r.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;"));
-    }
-    expect(richHtml(result)).toBe(html); // a pipeline result shows as its plan
+/** The notebook's code cells, in order, split as scripts/make-notebook.py splits them. */
+function codeCells(text: string): string[] {
+  const parts = text.split(/^%% (md|ts)\s*$/m);
+  const cells: string[] = [];
+  for (let i = 1; i + 1 < parts.length; i += 2) if (parts[i] === "ts") cells.push(parts[i + 1]!.replace(/^\n+|\n+$/g, ""));
+  return cells;
+}
+
+describe("notebook 01 and runPipeline", () => {
+  it("the notebook builds its plan from the pipeline's own stage functions", () => {
+    // If the notebook went back to hand-rolled clustering, the comparison below would compare
+    // nothing: the plan it writes must come from these calls.
+    const code = codeCells(source).join("\n");
+    for (const call of ["rs.resolvePipelineOptions(", "rs.extractRecording(", "rs.mergeScenarioSets(", "rs.embedScenarios(", "rs.fitClustering(", "const result = rs.planFromClustering("])
+      expect(code, `the notebook should call ${call}`).toContain(call);
+    expect(code).toContain("rs.writeOutputs(result,");
   });
 
-  it("shows a table and a logical scenario (plan schema 2 shape) as tables, and nothing else", () => {
-    expect(tableHtml({ columns: ["a", "b"], rows: [["<x>", 2]] })).toContain("<td>&lt;x&gt;</td><td class=\"num\">2</td>");
-    const ls = {
-      id: "LS-1", classId: "following", className: "following a leader", name: "following", share: 0.4, scenarios: 12,
-      parameters: [{ name: "thw", unit: "s", description: "time headway", min: 0.6, max: 3, p05: 0.8, p50: 1.5, p95: 2.6, measurable: 12 }],
-    };
-    const html = richHtml(ls)!;
-    expect(html).toContain("<td>thw</td><td>s</td><td>0.60</td><td>0.80</td><td>1.50</td><td>2.60</td><td>3.00</td>");
-    expect(richHtml({ a: 1 })).toBeNull();
-    expect(richHtml([1, 2])).toBeNull();
-  });
+  it("its step-by-step path, run as code, writes byte for byte the plan and model of runPipeline with the same seed", async () => {
+    const cells = codeCells(source);
+    const importLine = 'import * as rs from "../dist/index.js";';
+    expect(cells[0]).toContain(importLine);
+    const seed = Number(/const seed = (\d+);/.exec(cells[0]!)?.[1]);
+    expect(Number.isInteger(seed)).toBe(true);
+    const out = join(dir, "out");
+    // The cells as they are, in order, in one module: the display calls become no-ops (figures are
+    // still built, since they are their arguments), the library comes from src/ instead of dist/,
+    // and the output folder is a temporary one. Run from notebooks/ so relative paths hold.
+    const body = cells
+      .join("\n\n")
+      .replace(importLine, "")
+      .replaceAll("../out/notebook", out);
+    const script = `import * as lib from ${JSON.stringify(join(root, "src/index.ts"))};
+import { writeFileSync as __write } from "node:fs";
+const rs = { ...lib, show: () => {}, showTable: () => {}, showText: () => {}, loadPlotly: () => {} };
+${body}
+__write(${JSON.stringify(join(dir, "stepwise.plan.json"))}, rs.testPlanToJson(result.plan));
+__write(${JSON.stringify(join(dir, "stepwise.model.json"))}, rs.clusteringModelToJson(result.model));
+`;
+    const file = join(dir, "notebook-01.mts");
+    writeFileSync(file, script);
+    const r = spawnSync(process.execPath, ["--import", "tsx", file], { cwd: join(root, "notebooks"), encoding: "utf8", timeout: 600_000 });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout).toContain("plan.json identical: true");
 
-  it("the inspection hook leaves every other value's text as it was, and is invisible to keys and JSON", () => {
-    const before = [inspect({ a: 1, b: [1, 2] }), inspect(new Map([[1, 2]])), inspect([{ x: 1 }])];
-    enableRichDisplay();
-    expect([inspect({ a: 1, b: [1, 2] }), inspect(new Map([[1, 2]])), inspect([{ x: 1 }])]).toEqual(before);
-    expect(Object.keys({})).toEqual([]);
-    expect(JSON.stringify({ a: 1 })).toBe('{"a":1}');
-    // Outside a kernel, a plan falls back to its plain text.
-    expect(inspect(result.plan.selection)).toContain("testCases");
+    // Read the way the notebook reads it (the path as given is the recording's source in the plan).
+    const cwd = process.cwd();
+    process.chdir(join(root, "notebooks"));
+    const rec = await readRecording("../sample-data/orrowind/tracks.parquet").finally(() => process.chdir(cwd));
+    const one = runPipeline([rec], { seed });
+    const planJson = testPlanToJson(one.plan);
+    expect(readFileSync(join(dir, "stepwise.plan.json"), "utf8")).toBe(planJson);
+    expect(readFileSync(join(out, "plan.json"), "utf8")).toBe(planJson);
+    expect(readFileSync(join(dir, "stepwise.model.json"), "utf8")).toBe(clusteringModelToJson(one.model));
+    expect(readFileSync(join(out, "model.json"), "utf8")).toBe(clusteringModelToJson(one.model));
+  }, 600_000);
+
+  it("the notebook adapter's advice outside a kernel names functions that exist", () => {
+    // Earlier messages pointed to a writeReport() that the library never had.
+    expect(() => api.showText("x")).toThrow(OUTSIDE_JUPYTER);
+    const named = [...OUTSIDE_JUPYTER.matchAll(/([A-Za-z]+)\(/g)].map((m) => m[1]!);
+    expect(named).toEqual(["writeOutputs", "renderHtml", "buildReport"]);
+    for (const n of named) expect(typeof (api as Record<string, unknown>)[n], n).toBe("function");
   });
 });

@@ -22,8 +22,10 @@ let display: HtmlDisplay | undefined;
 let plotlySent = false;
 let counter = 0;
 
-const NOT_IN_KERNEL =
-  "roadsieve's notebook display works only inside a running tslab Jupyter kernel; from scripts, write the HTML report instead: await writeReport(result, \"report.html\") (or write(result, dir) for every output)";
+/** What to do instead of show() outside a kernel: names functions of the public API (a test checks they exist). */
+export const OUTSIDE_JUPYTER =
+  "outside Jupyter, write the report file with writeOutputs(result, dir) (report.html beside plan.json), or get its HTML as a string with renderHtml(buildReport(result))";
+const NOT_IN_KERNEL = `roadsieve's notebook display works only inside a running tslab Jupyter kernel; ${OUTSIDE_JUPYTER}`;
 
 function tslabDisplay(): HtmlDisplay {
   if (display) return display;
@@ -31,7 +33,7 @@ function tslabDisplay(): HtmlDisplay {
   try {
     mod = createRequire(import.meta.url)("tslab") as { display?: HtmlDisplay };
   } catch (e) {
-    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); ${NOT_IN_KERNEL}`);
+    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); ${OUTSIDE_JUPYTER}`);
   }
   if (!mod.display) throw new Error("tslab.display is missing; is this the tslab kernel?");
   display = mod.display;
