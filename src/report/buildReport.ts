@@ -420,8 +420,8 @@ function shareBars(cases: TestPlan["testCases"], top: number, name: (l: number) 
 }
 
 function describeWindow(r: PipelineResult): string {
-  const w = (r.scenarios.options as { window?: { mode?: string; seconds?: number; minSeconds?: number; maxSeconds?: number } } | undefined)?.window;
-  if (w?.mode === "fixed" && w.seconds) return `${w.seconds} s`;
-  if (w?.mode === "events") return `${w.minSeconds}–${w.maxSeconds} s event-cut`;
+  const w = (r.scenarios.options as { window?: { mode?: string; lengthS?: number; minS?: number; maxS?: number } } | undefined)?.window;
+  if (w?.mode === "fixed" && w.lengthS) return `${w.lengthS} s`;
+  if (w?.mode === "events") return `${w.minS}–${w.maxS} s event-cut`;
   return "scenario";
 }
