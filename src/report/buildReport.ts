@@ -381,14 +381,16 @@ function featureSection(r: PipelineResult): ReportSection {
   return {
     id: "features",
     heading: "What the clustering compares",
-    paragraphs: [`Each scenario is described by ${f.length} measured features in ${FEATURE_GROUPS.length} groups; the groups are weighted so that each counts about equally. Catalogue columns and notebooks use the feature names below.`],
-    tables: [
+    paragraphs: [
+      `Each scenario is described by ${f.length} measured features in ${FEATURE_GROUPS.length} groups; the groups are weighted so that each counts about equally. ` +
+        "Notebooks use the feature names below; in the catalogue database their dots become underscores (ego.speed.mean → column ego_speed_mean of the features table), and the feature_info table lists every feature with its unit and meaning.",
+    ],
+    legends: [
       {
-        columns: ["feature group", "names", "features", "what they measure"],
-        rows: FEATURE_GROUPS.map((g): ReportCell[] => [g, { code: prefix[g]!.prefix, label: "" }, f.filter((x) => x.group === g).length, prefix[g]!.meaning]),
+        title: "Feature names, by group",
+        entries: FEATURE_GROUPS.map((g) => ({ code: prefix[g]!.prefix, meaning: `${g} (${f.filter((x) => x.group === g).length} features): ${prefix[g]!.meaning}` })),
       },
     ],
-    legends: [{ title: "Feature names", entries: FEATURE_GROUPS.map((g) => ({ code: prefix[g]!.prefix, meaning: prefix[g]!.meaning })) }],
   };
 }
 

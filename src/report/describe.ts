@@ -163,7 +163,9 @@ export function clusterNames(scenarios: readonly Scenario[], labels: ArrayLike<n
     const lon = p.lon === null ? "" : `, ${LONGITUDINAL_WORDS[p.lon] ?? p.lon}`;
     const kmh = g.km > 0 ? Math.round((3.6 * g.speedKm) / g.km) : NaN;
     const share = Math.round((100 * bestN) / g.n);
-    names.set(l, `cluster ${l}: ${describeLateral(p.lat)}${lon}, ~${kmh} km/h (${share} % of it: ${describeTypeKey(best)})`);
+    // The rest of the most common type key (who is around, which events) as the detail.
+    const rest = describeTypeKey(best).split("; ").slice(p.lon === null ? 1 : 2).join("; ");
+    names.set(l, `cluster ${l}: ${describeLateral(p.lat)}${lon}, ~${kmh} km/h (most common, ${share} % of its scenarios: ${rest})`);
   }
   return {
     name(label: number): string {

@@ -88,7 +88,7 @@ header h1{margin:0;font-size:24px}header p{margin:4px 0 0;color:var(--muted)}
 nav{padding:8px 40px;border-bottom:1px solid var(--line);font-size:13px;position:sticky;top:0;background:#fff;z-index:2}
 nav a{margin-right:14px;color:var(--accent);text-decoration:none}
 main{padding:10px 40px 40px;max-width:1200px;overflow-x:hidden}
-section{margin:26px 0}section h2{font-size:18px;border-bottom:1px solid var(--line);padding-bottom:4px}
+section{margin:26px 0;scroll-margin-top:72px}.tablewrap,figure{scroll-margin-top:72px}section h2{font-size:18px;border-bottom:1px solid var(--line);padding-bottom:4px}
 .tiles{display:flex;flex-wrap:wrap;gap:12px;margin:18px 0}
 .tile{background:var(--panel);border:1px solid var(--line);border-radius:6px;padding:10px 14px;min-width:150px}
 .tile .v{font-size:20px;font-weight:600}.tile .l{color:var(--muted);font-size:12px}
