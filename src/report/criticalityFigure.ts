@@ -76,8 +76,8 @@ export function criticalityFigure(points: CriticalityPoint[], thresholds: Critic
   return {
     data,
     layout: baseLayout("How close each scenario came: shortest time headway and shortest time-to-collision", {
-      xaxis: { title: { text: "shortest time headway to the leader (s, log scale)" }, type: "log", range, tickangle: 0, ...logTicks(lo, cap) },
-      yaxis: { title: { text: "shortest time-to-collision while closing in (s, log scale)" }, type: "log", range, tickangle: 0, ...logTicks(lo, cap) },
+      xaxis: { title: { text: "shortest time headway to the leader (s, log)" }, type: "log", range, tickangle: 0, ...logTicks(lo, cap) },
+      yaxis: { title: { text: "shortest TTC while closing in (s, log)" }, type: "log", range, tickangle: 0, ...logTicks(lo, cap) },
       shapes,
       annotations,
       height: 480,
