@@ -148,3 +148,17 @@ describe("describeTypeKey", () => {
     expect(describeTypeKey("LCL>LCR>LCL…|K|occ:-|ev:-")).toBe("lane changes left, then right, then left, then more; steady speed; no neighbours");
   });
 });
+
+describe("the slot for the logical-scenario section", () => {
+  it("renders registered lead sections first, and only when the plan has logical scenarios", () => {
+    const lead = (p: { logicalScenarios?: readonly unknown[] }) => ({ id: "logical", heading: "Logical scenarios", paragraphs: [`${p.logicalScenarios!.length} logical scenarios`] });
+    // A plan of schema 1.x: no logicalScenarios, so the report starts with the summary as before.
+    expect(buildReport(result, { leadSections: [lead] }).sections[0]!.id).toBe("summary");
+    // The same plan with logical scenarios (schema 2 shape, CONTRACT §2): the lead section comes first.
+    const withLogical = { ...result, plan: { ...result.plan, logicalScenarios: [{ id: "LS-1" }, { id: "LS-2" }] } };
+    const doc = buildReport(withLogical as typeof result, { leadSections: [lead, () => "<p>ready-made section HTML</p>"] });
+    expect(doc.sections.slice(0, 3).map((s) => s.id)).toEqual(["logical", "logical-1", "summary"]);
+    expect(doc.sections[0]!.paragraphs).toEqual(["2 logical scenarios"]);
+    expect(renderHtml(doc)).toContain("<p>ready-made section HTML</p>");
+  });
+});
