@@ -71,8 +71,9 @@ function showFigure(figure: Figure): void {
 </script>`);
 }
 
+// Jupyter's own table style right-aligns every cell; text reads better left-aligned, numbers right.
 const STYLE =
-  "<style>.rs-nb table{border-collapse:collapse;font-size:12px}.rs-nb th,.rs-nb td{border:1px solid #dde2e8;padding:3px 6px;text-align:left;vertical-align:top}.rs-nb th{background:#f7f8fa}.rs-nb td.num{text-align:right}.rs-nb .lbl{color:#5b6673;font-size:11px}.rs-nb p{margin:4px 0}</style>";
+  "<style>div.rs-nb table{border-collapse:collapse;font-size:12px}div.rs-nb table th,div.rs-nb table td{border:1px solid #dde2e8;padding:3px 6px;text-align:left !important;vertical-align:top}div.rs-nb table th{background:#f7f8fa}div.rs-nb table td.num{text-align:right !important}div.rs-nb .lbl{color:#5b6673;font-size:11px}div.rs-nb p{margin:4px 0}</style>";
 
 function cellHtml(c: ReportCell): string {
   if (typeof c === "number") return `<td class="num">${escapeHtml(String(c))}</td>`;
