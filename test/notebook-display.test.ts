@@ -8,6 +8,8 @@ import { describe, expect, it } from "vitest";
 import { Rng } from "../src/core/rng.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
 import { enableRichDisplay, richHtml, tableHtml } from "../src/report/notebook.js";
+import { reasonInWords } from "../src/report/describe.js";
+import { escapeHtml } from "../src/report/html.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 
 const traffic = generateTraffic({ vehicleKm: 10, hardBrakingRate: 0.2, recordingId: "notebook-test" }, new Rng(5));
@@ -19,7 +21,10 @@ describe("rich display", () => {
     expect(html).not.toBeNull();
     for (const t of result.plan.testCases.slice(0, 15)) {
       expect(html).toContain(`<td>${t.id}</td>`);
-      for (const r of t.reasons) expect(html).toContain(r.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;"));
+      // Critical reasons (the rule and the measured figure) are shown as the plan states them; the
+      // others in plain words.
+      for (const r of t.reasons) expect(html).toContain(escapeHtml(r.startsWith("critical:") ? r : reasonInWords(r, undefined, t.memberCount)));
+      if (t.role === "rare") expect(html).toMatch(/rare: (like no dense group|the only scenario of its type key)/);
     }
     expect(richHtml(result)).toBe(html); // a pipeline result shows as its plan
   });

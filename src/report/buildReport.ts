@@ -6,7 +6,7 @@ import { criticalReasons } from "../plan/criticality.js";
 import { resolveTestPlanOptions } from "../plan/options.js";
 import type { TestCase, TestPlan } from "../plan/types.js";
 import { criticalityFigure, type CriticalRule } from "./criticalityFigure.js";
-import { clusterNames, describeTypeKey, EXPOSURE_WORDS, exposureLegend, roleLegend, shortClusterName, typeKeyLegend, type ReportLegend } from "./describe.js";
+import { clusterNames, describeTypeKey, reasonInWords, EXPOSURE_WORDS, exposureLegend, roleLegend, shortClusterName, typeKeyLegend, type ReportLegend } from "./describe.js";
 import { discoveryFigure, type DiscoverySeries } from "./discoveryFigure.js";
 import { foldRepeatedColumns } from "./foldColumns.js";
 import { histogramFigure } from "./histogramFigure.js";
@@ -31,12 +31,8 @@ export const REPORT_CAUTIONS = [
 /** Plain words for the roles (the legend explains them in full). */
 const ROLE_WORDS: Record<string, string> = { representative: "stands for its cluster", critical: "kept: critical", rare: "kept: rare" };
 
-/** A plan reason in words a reader outside the project follows. */
 function reasonWords(reason: string, t: TestCase, name: (l: number) => string): string {
-  if (reason.startsWith("medoid of cluster")) return `typical of ${shortClusterName(name(t.cluster))}: the recorded scenario closest to all ${t.memberCount} in it`;
-  if (reason === "rare: DBSCAN noise (recurs in no cluster)") return "rare: like no dense group of scenarios (DBSCAN noise)";
-  if (reason === "rare: type key seen once") return "rare: the only scenario of its type key";
-  return reason;
+  return reasonInWords(reason, shortClusterName(name(t.cluster)), t.memberCount);
 }
 
 /** The first plan rule a scenario crossed, from the plan's own reasons. */

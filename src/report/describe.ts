@@ -180,3 +180,12 @@ export function shortClusterName(full: string): string {
   const i = full.indexOf(" (");
   return i > 0 ? full.slice(0, i) : full;
 }
+
+/** A plan reason (plan.json's reasons) in words a reader outside the project follows. */
+export function reasonInWords(reason: string, clusterName?: string, members?: number): string {
+  if (reason.startsWith("medoid of cluster"))
+    return `typical of ${clusterName ?? reason.slice("medoid of ".length)}: the recorded scenario closest to all ${members ?? "the others"} in it`;
+  if (reason === "rare: DBSCAN noise (recurs in no cluster)") return "rare: like no dense group of scenarios (DBSCAN noise)";
+  if (reason === "rare: type key seen once") return "rare: the only scenario of its type key";
+  return reason;
+}

@@ -11,7 +11,7 @@
 import { createRequire } from "node:module";
 import type { Figure } from "./figure.js";
 import { cellText, escapeHtml, scriptJson, type ReportCell, type ReportTable } from "./html.js";
-import { describeTypeKey } from "./describe.js";
+import { describeTypeKey, reasonInWords } from "./describe.js";
 import { plotlySource } from "./plotlySource.js";
 
 interface HtmlDisplay {
@@ -113,7 +113,7 @@ export function planTable(plan: { testCases: Obj[] }): ReportTable {
       return [
         String(t.id),
         String(t.role ?? t.kind ?? ""),
-        { lines: Array.isArray(t.reasons) ? (t.reasons as string[]) : [] },
+        { lines: Array.isArray(t.reasons) ? (t.reasons as string[]).map((r) => reasonInWords(r, undefined, typeof t.memberCount === "number" ? t.memberCount : undefined)) : [] },
         key ? { code: key, label: describeTypeKey(key) } : String(t.logicalScenario ?? ""),
         pct(t.share),
         fix(c.minTtc),
