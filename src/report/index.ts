@@ -22,7 +22,7 @@ export { show, showTable, showText, loadPlotly, richHtml, tableHtml, planTable, 
 export { writeReport } from "./writeReport.js";
 export type { BuildReportOptions } from "./buildReport.js";
 export { foldRepeatedColumns } from "./foldColumns.js";
-export { describeTypeKey, typeKeyLegend, exposureLegend, roleLegend, clusterNames } from "./describe.js";
+export { describeTypeKey, typeKeyLegend, exposureLegend, roleLegend, clusterNames, reasonInWords } from "./describe.js";
 export type { ReportLegend } from "./describe.js";
 export { LEAD_SECTIONS, leadSections } from "./leadSections.js";
 export type { LeadSection } from "./leadSections.js";
