@@ -31,6 +31,7 @@ export type { ReadRecordingOptions } from "./recording/readRecording.js";
 export type { PipelineOptions, ResolvedPipelineOptions } from "./pipeline/options.js";
 export type { PipelineResult } from "./pipeline/planCatalogue.js";
 export type { TestPlan, TestCase } from "./plan/types.js";
+export type { Plan } from "./plan/logicalTypes.js";
 export type { Figure } from "./report/figure.js";
 
 // One namespace per stage, in pipeline order.
@@ -44,6 +45,7 @@ export * as embed from "./embed/index.js";
 export * as cluster from "./cluster/index.js";
 export * as exposure from "./exposure/index.js";
 export * as coverage from "./coverage/index.js";
+export * as logical from "./logical/index.js";
 export * as testPlan from "./plan/index.js";
 export * as pipeline from "./pipeline/index.js";
 export * as catalogue from "./catalogue/index.js";

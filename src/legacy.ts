@@ -25,3 +25,4 @@ export * from "./plan/index.js";
 export * from "./pipeline/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";
+export * from "./logical/index.js";

@@ -16,17 +16,24 @@ const traffic = generateTraffic({ vehicleKm: 10, hardBrakingRate: 0.2, recording
 const result = runPipeline([traffic.recording], { seed: 1, map: "pca", k: 3 });
 
 describe("rich display", () => {
-  it("shows a plan as its summary and a table of test cases with why each is there", () => {
+  it("shows the plan of logical scenarios (schema 2) as its summary, the logical scenarios and the concrete test cases", () => {
     const html = richHtml(result.plan)!;
     expect(html).not.toBeNull();
-    for (const t of result.plan.testCases.slice(0, 15)) {
+    for (const l of result.plan.logicalScenarios) expect(html).toContain(`<td>${escapeHtml(l.id)}</td>`);
+    for (const t of result.plan.testCases.slice(0, 15)) expect(html).toContain(`<td>${escapeHtml(t.id)}</td>`);
+    expect(richHtml(result)).toBe(html); // a pipeline result shows as its plan
+  });
+
+  it("shows a cluster-view plan as its summary and a table of test cases with why each is there", () => {
+    const html = richHtml(result.plan.exploration)!;
+    expect(html).not.toBeNull();
+    for (const t of result.plan.exploration.testCases.slice(0, 15)) {
       expect(html).toContain(`<td>${t.id}</td>`);
       // Critical reasons (the rule and the measured figure) are shown as the plan states them; the
       // others in plain words.
       for (const r of t.reasons) expect(html).toContain(escapeHtml(r.startsWith("critical:") ? r : reasonInWords(r, undefined, t.memberCount)));
       if (t.role === "rare") expect(html).toMatch(/rare: (like no dense group|the only scenario of its type key)/);
     }
-    expect(richHtml(result)).toBe(html); // a pipeline result shows as its plan
   });
 
   it("shows a table and a logical scenario (plan schema 2 shape) as tables, and nothing else", () => {

@@ -53,6 +53,10 @@ const SAMPLE: Record<string, string | boolean> = {
   "no-dbscan": true,
   critical: "per-type",
   rare: "noise",
+  classes: "following,cut-in",
+  "max-k-per-class": "3",
+  "min-share": "0.05",
+  importance: "1",
 };
 
 describe("roadsieve plan --help against the options that exist", () => {

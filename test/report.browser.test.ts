@@ -13,7 +13,7 @@ import { pathToFileURL } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { Rng } from "../src/core/rng.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
-import { writeTestPlan } from "../src/plan/writeTestPlan.js";
+import { writePlan } from "../src/plan/writePlan.js";
 import { buildReport } from "../src/report/buildReport.js";
 import { renderHtml } from "../src/report/html.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
@@ -50,7 +50,7 @@ const FIRST_ROWS = `(() => [...document.querySelectorAll("table")].map((t, i) =>
 
 beforeAll(async () => {
   if (missing) return;
-  await writeTestPlan(result.plan, dir);
+  await writePlan(result.plan, dir);
   writeFileSync(reportPath, renderHtml(buildReport(result)));
   browser = await Browser.launch();
   page = await browser.newPage(1280, 900, true);

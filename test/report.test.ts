@@ -31,7 +31,7 @@ describe("renderHtml(buildReport(result))", () => {
     expect(titles.some((t) => t.startsWith("What each test case stands for"))).toBe(true);
     const map = figs.find((f) => f.figure.layout.title.text.startsWith("Map of similarity"))!;
     const diamonds = map.figure.data.find((d) => d.name?.startsWith("test cases"))!;
-    expect(diamonds.x!.length).toBe(result.plan.testCases.length);
+    expect(diamonds.x!.length).toBe(result.plan.exploration.testCases.length); // the map marks the exploration view's test cases
     for (const f of figs) expect(html).toContain(`<div id="${f.id}" class="plot">`);
   });
 
@@ -65,7 +65,8 @@ function figuresOf(page: string): { id: string; figure: { data: Record<string, u
 describe("report readability", () => {
   const doc = buildReport(result);
   const figs = figuresOf(html);
-  const plan = result.plan;
+  // The cluster view (plan.exploration) is what the test-case, cluster and criticality sections show.
+  const plan = result.plan.exploration;
 
   it("each test case row says why it is in the plan, with the rule and the measured figure", () => {
     const sec = doc.sections.find((s) => s.id === "test-cases")!;
@@ -121,9 +122,11 @@ describe("report readability", () => {
   });
 
   it("lists the plan's warnings, the same list as plan.json", () => {
+    // plan.json is the plan of logical scenarios (schema 2); its warnings hold every warning of the run.
     const w = doc.sections.find((s) => s.id === "warnings")!;
-    expect(w.bullets).toEqual(plan.warnings);
-    expect(result.warnings).toEqual(plan.warnings);
+    expect(w.bullets).toEqual(result.plan.warnings);
+    expect(result.warnings).toEqual(result.plan.warnings);
+    for (const rw of result.recordings[0]!.warnings) expect(result.plan.warnings).toContain(`${result.recordings[0]!.id}: ${rw}`);
   });
 });
 
@@ -150,15 +153,15 @@ describe("describeTypeKey", () => {
 });
 
 describe("the slot for the logical-scenario section", () => {
-  it("renders registered lead sections first, and only when the plan has logical scenarios", () => {
-    const lead = (p: { logicalScenarios?: readonly unknown[] }) => ({ id: "logical", heading: "Logical scenarios", paragraphs: [`${p.logicalScenarios!.length} logical scenarios`] });
-    // A plan of schema 1.x: no logicalScenarios, so the report starts with the summary as before.
-    expect(buildReport(result, { leadSections: [lead] }).sections[0]!.id).toBe("summary");
-    // The same plan with logical scenarios (schema 2 shape, CONTRACT §2): the lead section comes first.
-    const withLogical = { ...result, plan: { ...result.plan, logicalScenarios: [{ id: "LS-1" }, { id: "LS-2" }] } };
-    const doc = buildReport(withLogical as typeof result, { leadSections: [lead, () => "<p>ready-made section HTML</p>"] });
-    expect(doc.sections.slice(0, 3).map((s) => s.id)).toEqual(["logical", "logical-1", "summary"]);
-    expect(doc.sections[0]!.paragraphs).toEqual(["2 logical scenarios"]);
+  it("renders the plan of logical scenarios right after the cautions, registered lead sections first, then the cluster view", () => {
+    const lead = (p: { logicalScenarios?: readonly unknown[] }) => ({ id: "lead", heading: "Lead", paragraphs: [`${p.logicalScenarios!.length} logical scenarios`] });
+    const doc = buildReport(result, { leadSections: [lead, () => "<p>ready-made section HTML</p>"] });
+    const ids = doc.sections.map((s) => s.id);
+    expect(ids.slice(0, 5)).toEqual(["summary", "cautions", "lead", "logical-1", "classes"]);
+    expect(ids.indexOf("logical-scenarios")).toBeLessThan(ids.indexOf("test-cases"));
+    expect(doc.sections[2]!.paragraphs).toEqual([`${result.plan.logicalScenarios.length} logical scenarios`]);
     expect(renderHtml(doc)).toContain("<p>ready-made section HTML</p>");
+    // Without registered sections the logical sections follow the cautions directly.
+    expect(buildReport(result).sections.map((s) => s.id).slice(0, 3)).toEqual(["summary", "cautions", "classes"]);
   });
 });

@@ -13,7 +13,10 @@ import { map2d } from "../embed/map2d.js";
 import { scenarioWeights } from "../exposure/sampleWeights.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
-import type { TestPlan } from "../plan/types.js";
+import { buildPlanDetailed } from "../plan/buildPlan.js";
+import type { Plan } from "../plan/logicalTypes.js";
+import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
+import { logicalModelToJSON } from "../logical/assignLogicalScenarios.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
 import type { ScenarioSet } from "../scenario/types.js";
 import type { RecordingSummary } from "./extractRecording.js";
@@ -42,7 +45,11 @@ export interface PipelineResult {
   model: ClusteringModel;
   typeKeys: string[];
   map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
-  plan: TestPlan;
+  /** The plan of logical scenarios (schema 2.0.0); plan.exploration holds the global cluster view. */
+  plan: Plan;
+  /** Logical scenario id per scenario, and the fitted per-class model (standardization, representatives). */
+  logicalScenarioOf: string[];
+  logicalModel: LogicalModel;
   /** Seconds per stage. */
   timings: Record<string, number>;
   warnings: string[];
@@ -129,7 +136,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     embedding: o.embedding,
     weightBy: o.weightBy,
   };
-  const plan = timed("test plan", () =>
+  const exploration = timed("test plan", () =>
     buildTestPlan(
       {
         scenarios: scenarios.scenarios,
@@ -156,14 +163,19 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
             weightBy: o.weightBy,
           },
         },
-        // Every warning of the run goes into plan.json, so that it and the report list the same.
-        upstreamWarnings: [...c.summaries.flatMap((s) => s.warnings.map((w) => `${s.id}: ${w}`)), ...warnings, ...map.warnings.map((w) => `2-D map: ${w}`)],
         progress,
       },
-      o.plan,
+      { ...o.plan, budget: undefined },
     ),
   );
-  // The run's warnings are the plan's: the recordings', the stages' and the plan's own, in order.
+  // plan.budget counts concrete test cases; the exploration view keeps every cluster's medoid.
+  const detailed = timed("logical scenarios", () =>
+    buildPlanDetailed({ scenarios: scenarios.scenarios, exploration, rng: rng.fork("plan") }, o.plan, { ...o.logical, budget: o.logical.budget ?? o.plan.budget }),
+  );
+  const plan = detailed.plan;
+  // Every warning of the run goes into plan.json, so that it and the report list the same: the
+  // recordings', the stages' (clustering, 2-D map), then the plan's own.
+  plan.warnings = [...c.summaries.flatMap((s) => s.warnings.map((w) => `${s.id}: ${w}`)), ...warnings, ...map.warnings.map((w) => `2-D map: ${w}`), ...plan.warnings];
   warnings.length = 0;
   warnings.push(...plan.warnings);
   return {
@@ -179,10 +191,13 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     dbscan: db,
     labels,
     medoids: med,
-    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown> },
+    // The per-class model of the logical scenarios rides in model.json under its `logical` key.
+    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown>, logical: JSON.parse(logicalModelToJSON(detailed.model)) as unknown },
     typeKeys,
     map,
     plan,
+    logicalScenarioOf: detailed.logicalScenarioOf,
+    logicalModel: detailed.model,
     timings,
     warnings,
   };

@@ -14,6 +14,7 @@ import type { ReportCell, ReportDocument, ReportSection } from "./html.js";
 import { kDistanceFigure } from "./kDistanceFigure.js";
 import { kSweepFigure } from "./kSweepFigure.js";
 import { leadSections, LEAD_SECTIONS, type LeadSection } from "./leadSections.js";
+import { logicalSections } from "./logicalSection.js";
 import { scenarioMapFigure } from "./scenarioMapFigure.js";
 import { shareFigure, type ShareBar } from "./shareFigure.js";
 
@@ -56,7 +57,9 @@ export interface BuildReportOptions {
 export function buildReport(r: PipelineResult, titleOrOptions: string | BuildReportOptions = {}): ReportDocument {
   const opts: BuildReportOptions = typeof titleOrOptions === "string" ? { title: titleOrOptions } : titleOrOptions;
   const title = opts.title ?? "roadsieve test plan";
-  const plan = r.plan;
+  // The plan of logical scenarios (schema 2) comes first (logicalSection.ts); the sections after
+  // it describe the global cluster view, plan.exploration, in a reader's terms.
+  const plan = r.plan.exploration;
   const sc = r.scenarios.scenarios;
   const n = sc.length;
   const names = clusterNames(sc, r.labels, r.typeKeys);
@@ -67,19 +70,23 @@ export function buildReport(r: PipelineResult, titleOrOptions: string | BuildRep
   const planOptions = resolveTestPlanOptions(r.options.plan);
   const reasons = sc.map((s) => criticalReasons(s, planOptions));
   const critical = reasons.map((x) => x.length > 0);
-  const sections: ReportSection[] = [...leadSections(plan as TestPlan & { logicalScenarios?: unknown[] }, opts.leadSections ?? LEAD_SECTIONS)];
+  const sections: ReportSection[] = [];
   const window = describeWindow(r);
 
   sections.push({
     id: "summary",
     heading: "Summary",
     paragraphs: [
-      `A scenario is one ${window} window of one vehicle's drive (that vehicle is "the ego"). The recordings were cut into ${n} scenarios, grouped into ${r.k} clusters of similar scenarios, and ${plan.testCases.length} of them were chosen as test cases: ` +
+      `A scenario is one ${window} window of one vehicle's drive (that vehicle is "the ego"). The recordings were cut into ${n} scenarios. ` +
+        `The plan groups them into logical scenarios by class and parameters (first sections below); the later sections show the same scenarios grouped into ${r.k} clusters of similar scenarios (the cluster view), with ${plan.testCases.length} cluster test cases: ` +
         `${plan.selection.representatives} that each stand for a whole cluster, ${plan.selection.critical} kept because they crossed a criticality rule, and ${plan.selection.rare} kept because they are rare.`,
-      ...plan.summary.split(/\n+/).filter((p) => p.trim() !== ""),
+      ...r.plan.summary.split(/\n+/).filter((p) => p.trim() !== ""),
     ],
   });
-  sections.push({ id: "cautions", heading: "Cautions", tone: "caution", bullets: plan.cautions.length > 0 ? plan.cautions : REPORT_CAUTIONS });
+  sections.push({ id: "cautions", heading: "Cautions", tone: "caution", bullets: r.plan.cautions.length > 0 ? r.plan.cautions : REPORT_CAUTIONS });
+  // Sections registered in the slot (leadSections.ts), then the plan of logical scenarios.
+  sections.push(...leadSections(r.plan as unknown as TestPlan & { logicalScenarios?: unknown[] }, opts.leadSections ?? LEAD_SECTIONS));
+  sections.push(...logicalSections(r.plan));
 
   sections.push(testCaseSection(r, name, window));
 
@@ -267,9 +274,9 @@ export function buildReport(r: PipelineResult, titleOrOptions: string | BuildRep
       },
     ],
   });
-  // The same list as plan.json's "warnings" (runPipeline hands the recordings' and stages'
+  // The same list as plan.json's "warnings" (planFromClustering hands the recordings' and stages'
   // warnings to the plan), so a reader of either sees the same.
-  const w = plan.warnings;
+  const w = r.plan.warnings;
   sections.push({
     id: "warnings",
     heading: `Warnings (${w.length})`,
@@ -305,7 +312,7 @@ export function buildReport(r: PipelineResult, titleOrOptions: string | BuildRep
 
 /** The test-case section: the share chart, then one row per test case with why it is there. */
 function testCaseSection(r: PipelineResult, name: (l: number) => string, window: string): ReportSection {
-  const plan = r.plan;
+  const plan = r.plan.exploration;
   const bars = shareBars(plan.testCases, 30, name);
   const rows = plan.testCases.map((t): ReportCell[] => [
     t.id,
