@@ -47,7 +47,11 @@ export * as exposure from "./exposure/index.js";
 export * as coverage from "./coverage/index.js";
 export * as logical from "./logical/index.js";
 export * as testPlan from "./plan/index.js";
+export * as exports from "./exports/index.js";
+export * as resim from "./resim/index.js";
 export * as pipeline from "./pipeline/index.js";
+export * as shard from "./shard/index.js";
+export * as extraction from "./extract/index.js";
 export * as catalogue from "./catalogue/index.js";
 export * as report from "./report/index.js";
 

@@ -285,6 +285,9 @@ describe("assignLogicalScenarios with the fitted model (JSON save / load)", () =
     // Every recorded scenario lies within its logical scenario's radius of some representative of its class.
     const all = assignLogicalScenarios(model, sc);
     expect(all.filter((x) => x.novel).length).toBe(0);
+    // The saved model reproduces the fit's labels exactly on the scenarios it was fitted on (each
+    // member sits nearest its own representative after the k-medoids Voronoi step).
+    expect(all.map((x) => x.logicalScenario)).toEqual(base.logicalScenarioOf);
   });
   it("flags a scenario far outside the recorded space as novel, and rejects a broken model file naming the field", () => {
     const f = sc.find((s) => s.scenarioClass === "following")!;

@@ -9,11 +9,14 @@ import type { Command } from "./command.js";
 import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
 import { demoCommand } from "./commands/demo.js";
+import { extractCommand } from "./commands/extract.js";
 import { generateCommand } from "./commands/generate.js";
 import { planCommand } from "./commands/plan.js";
+import { resimCommand } from "./commands/resim.js";
+import { submitCommand, workerCommand } from "./commands/queue.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, checkCommand, generateCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand, resimCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

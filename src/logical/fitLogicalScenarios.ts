@@ -204,8 +204,8 @@ export function fitLogicalScenarios(scenarios: readonly Scenario[], weights: Flo
     const tried: { k: number; coverage: number }[] = [];
     let chosen: { labels: Int32Array; med: Int32Array; coverage: number; k: number } | null = null;
     for (let k = 1; k <= kMax; k++) {
-      const labels = k === 1 ? new Int32Array(m) : kmeans(X, k, { rng: rng.fork(`logical/${cls.id}/${k}`), nInit: o.nInit, weights: w }).labels;
-      const med = medoids(X, labels).indices;
+      const start = k === 1 ? new Int32Array(m) : kmeans(X, k, { rng: rng.fork(`logical/${cls.id}/${k}`), nInit: o.nInit, weights: w }).labels;
+      const { labels, med } = k === 1 ? { labels: start, med: medoids(X, start).indices } : nearestMedoidLabels(X, start);
       let cov = 0;
       for (let r = 0; r < m; r++) if (med[labels[r]!]! >= 0 && within(r, med[labels[r]!]!)) cov += w[r]!;
       const coverage = totalW > 0 ? cov / totalW : 1;
@@ -249,6 +249,49 @@ export function fitLogicalScenarios(scenarios: readonly Scenario[], weights: Flo
     model.classes.push(mc);
   }
   return { classes, scenarios: fitted, labelOf, model, warnings };
+}
+
+/**
+ * From k-means labels to a partition in which every scenario belongs to its nearest representative
+ * (exact medoid): alternate "medoid of each cluster" and "nearest medoid" until nothing moves (the
+ * Voronoi iteration of k-medoids; each step lowers the sum of distances to the medoids, Park & Jun,
+ * Expert Systems with Applications 36, 2009). Assigning a scenario to the nearest representative —
+ * what assignLogicalScenarios does for new scenarios — then reproduces the fit's labels exactly.
+ */
+function nearestMedoidLabels(X: Matrix, start: Int32Array): { labels: Int32Array; med: Int32Array } {
+  const { rows: m, cols: d } = X;
+  let labels = start;
+  let med = medoids(X, labels).indices;
+  for (let iter = 0; iter < 100; iter++) {
+    const next = new Int32Array(m);
+    for (let r = 0; r < m; r++) {
+      let best = -1;
+      let bestD = Infinity;
+      for (let c = 0; c < med.length; c++) {
+        const q = med[c]!;
+        if (q < 0) continue;
+        let s = 0;
+        for (let j = 0; j < d; j++) s += (X.data[r * d + j]! - X.data[q * d + j]!) ** 2;
+        const dist = Math.sqrt(s);
+        if (dist < bestD) {
+          bestD = dist;
+          best = c;
+        }
+      }
+      next[r] = best;
+    }
+    let moved = false;
+    for (let r = 0; r < m && !moved; r++) moved = next[r] !== labels[r];
+    labels = next;
+    if (!moved) break;
+    const again = medoids(X, labels).indices;
+    // A cluster that lost every member keeps no representative; the others move to their new medoid.
+    let same = again.length === med.length;
+    for (let c = 0; c < again.length && same; c++) same = again[c] === med[c];
+    med = again;
+    if (same) break;
+  }
+  return { labels, med };
 }
 
 function describeCluster(

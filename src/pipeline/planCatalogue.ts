@@ -134,6 +134,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     scene: o.scene,
     scenario: scenarios.options ?? o.scenario,
     embedding: o.embedding,
+    measure: o.measure,
     weightBy: o.weightBy,
   };
   const exploration = timed("test plan", () =>
@@ -144,7 +145,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
         medoids: med.indices,
         embedding: X,
         typeKeys,
-        clusterMethod: `k-means (k = ${k}${sweep ? ", chosen by silhouette" : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
+        clusterMethod: `k-means (k = ${k}${sweep ? `, chosen by silhouette${sampledSweepNote(sweep, k, n)}` : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
         provenance: {
           seed: o.seed,
           inputChecksums,
@@ -212,4 +213,16 @@ export function checkDistinctIds(recordings: readonly { id: string; source: stri
       throw new InputError(`two recordings have the id "${rec.id}" (${other} and ${rec.source}); scenario ids would collide — give each its own id (readRecording option id)`);
     seen.set(rec.id, rec.source);
   }
+}
+
+/**
+ * How a sampled k choice was measured, for the plan's method line: the silhouette sample, its
+ * standard error at the chosen k, and the sweep's fit sample. Empty when the sweep was exact, so
+ * small catalogues keep the plain line.
+ */
+function sampledSweepNote(sweep: SweepKResult, k: number, n: number): string {
+  if (sweep.silhouetteExact) return "";
+  const se = sweep.rows.find((r) => r.k === k)?.silhouetteSe ?? NaN;
+  const fits = sweep.fitSample < n ? `; sweep fits on a seeded sample of ${sweep.fitSample}` : "";
+  return ` on a seeded sample of ${sweep.silhouetteSample} of ${n} scenarios, standard error ${se.toFixed(3)}${fits}`;
 }

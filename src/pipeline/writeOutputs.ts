@@ -8,7 +8,7 @@ import { saveClusteringModel } from "../cluster/clusteringModel.js";
 import { buildReport } from "../report/buildReport.js";
 import { renderHtml } from "../report/html.js";
 import type { PipelineResult } from "./runPipeline.js";
-import { writeOpenScenarioFiles } from "../plan/openScenario.js";
+import { scenarioExportFiles, writeExportFiles } from "../exports/writeScenarioExports.js";
 import type { Recording } from "../recording/types.js";
 
 export interface WriteOutputsOptions {
@@ -17,7 +17,8 @@ export interface WriteOutputsOptions {
   /** Also export every catalogue table to DIR/catalogue/<table>.parquet (default false). */
   parquet?: boolean;
   /**
-   * Also write one ASAM OpenSCENARIO 1.x file per test case into DIR/openscenario/, from these
+   * Also write one ASAM OpenSCENARIO 1.2 file per test case and one ASAM OpenDRIVE 1.6 road per
+   * recording into DIR/openscenario/, from these
    * recordings (the ones the pipeline ran on). Default: not written.
    */
   openScenario?: readonly Recording[];
@@ -45,13 +46,9 @@ export async function writeOutputs(r: PipelineResult, dir: string, options: Writ
   written.push(reportPath);
   options.progress?.({ stage: "report", done: 1, total: 1 });
   if (options.openScenario) {
-    const byId = new Map(options.openScenario.map((rec) => [rec.id, rec.tracks]));
-    const osc = await writeOpenScenarioFiles(r.plan.exploration, r.scenarios.scenarios, (id) => {
-      const tracks = byId.get(id);
-      if (!tracks) throw new RangeError(`recording "${id}" was not passed to writeOutputs; pass the recordings the pipeline ran on`);
-      return tracks;
-    }, join(dir, "openscenario"));
-    written.push(...osc.paths);
+    // Every text is built before the first file is written, so bad input leaves nothing half-exported.
+    const osc = scenarioExportFiles(r.plan, r.scenarios.scenarios, options.openScenario);
+    written.push(...(await writeExportFiles(osc.files, join(dir, "openscenario"))));
     warnings.push(...osc.warnings.map((w) => `OpenSCENARIO ${w}`));
   }
   if (options.catalogue !== false) {

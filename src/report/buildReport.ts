@@ -15,6 +15,8 @@ import { kDistanceFigure } from "./kDistanceFigure.js";
 import { kSweepFigure } from "./kSweepFigure.js";
 import { leadSections, LEAD_SECTIONS, type LeadSection } from "./leadSections.js";
 import { logicalSections } from "./logicalSection.js";
+import type { FidelityRow } from "../resim/fidelityTable.js";
+import { fidelitySection } from "./fidelitySection.js";
 import { scenarioMapFigure } from "./scenarioMapFigure.js";
 import { shareFigure, type ShareBar } from "./shareFigure.js";
 
@@ -51,11 +53,13 @@ export interface BuildReportOptions {
   title?: string;
   /** Sections placed first when the plan has logical scenarios (default: the registered LEAD_SECTIONS). */
   leadSections?: readonly LeadSection[];
+  /** Re-simulation results (resim/resimPlanFolder), shown before the warnings when given. */
+  fidelity?: readonly FidelityRow[];
 }
 
 /** Turn a pipeline result into the report document (data only; renderHtml makes the page). */
-export function buildReport(r: PipelineResult, titleOrOptions: string | BuildReportOptions = {}): ReportDocument {
-  const opts: BuildReportOptions = typeof titleOrOptions === "string" ? { title: titleOrOptions } : titleOrOptions;
+export function buildReport(r: PipelineResult, titleOrOptions: string | BuildReportOptions = {}, fidelityRows?: readonly FidelityRow[]): ReportDocument {
+  const opts: BuildReportOptions = typeof titleOrOptions === "string" ? { title: titleOrOptions, fidelity: fidelityRows } : { fidelity: fidelityRows, ...titleOrOptions };
   const title = opts.title ?? "roadsieve test plan";
   // The plan of logical scenarios (schema 2) comes first (logicalSection.ts); the sections after
   // it describe the global cluster view, plan.exploration, in a reader's terms.
@@ -276,6 +280,8 @@ export function buildReport(r: PipelineResult, titleOrOptions: string | BuildRep
   });
   // The same list as plan.json's "warnings" (planFromClustering hands the recordings' and stages'
   // warnings to the plan), so a reader of either sees the same.
+  // Hook: re-simulation results (resim/resimPlanFolder), when the caller has them.
+  if (opts.fidelity && opts.fidelity.length > 0) sections.push(fidelitySection(opts.fidelity));
   const w = r.plan.warnings;
   sections.push({
     id: "warnings",

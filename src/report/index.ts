@@ -26,3 +26,4 @@ export { describeTypeKey, typeKeyLegend, exposureLegend, roleLegend, clusterName
 export type { ReportLegend } from "./describe.js";
 export { LEAD_SECTIONS, leadSections } from "./leadSections.js";
 export type { LeadSection } from "./leadSections.js";
+export { fidelitySection, fidelityFigure } from "./fidelitySection.js";

@@ -75,6 +75,7 @@ export const assignCommand: Command = {
         scene: ex.scene as PipelineOptions["scene"],
         scenario: ex.scenario as PipelineOptions["scenario"],
         embedding: ex.embedding as PipelineOptions["embedding"],
+        measure: ex.measure as PipelineOptions["measure"],
       };
       const weightBy = ex.weightBy === "hours" ? "hours" : "km";
       const recs = [];

@@ -1,11 +1,13 @@
 import { resolve } from "node:path";
 import { parseArgs } from "node:util";
 import type { Progress } from "../../core/progress.js";
-import type { PipelineOptions } from "../../pipeline/options.js";
-import { runPipeline } from "../../pipeline/runPipeline.js";
+import { collectExtractions } from "../../extract/collectExtractions.js";
+import { resolvePipelineOptions, type PipelineOptions } from "../../pipeline/options.js";
+import { planCatalogue } from "../../pipeline/planCatalogue.js";
 import { writeOutputs } from "../../pipeline/writeOutputs.js";
 import { readRecording, type ReadRecordingOptions } from "../../recording/readRecording.js";
 import type { Recording } from "../../recording/types.js";
+import { planInputs } from "../../shard/planInputs.js";
 import type { Command } from "../command.js";
 import { SCENARIO_CLASS_IDS, isScenarioClassId } from "../../logical/classes.js";
 import { progressDisplay } from "../progressDisplay.js";
@@ -59,7 +61,9 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
                        own: DBSCAN noise, type keys seen once                  (default: noise+types)
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
-  --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
+  --openscenario       also write one ASAM OpenSCENARIO 1.2 file per recorded test case, a parameterized
+                       template per logical scenario and an ASAM OpenDRIVE 1.6 road per recording to
+                       DIR/openscenario/ (docs/openscenario.md)
   --quiet              no progress display
   --classes A,B        scenario classes clustered inside (others: one logical scenario each); ids in docs/logical.md
   --max-k-per-class N  most logical scenarios per class                (default: 2)
@@ -123,21 +127,61 @@ export function pipelineOptions(v: PipelineCliValues): PipelineOptions {
   return o;
 }
 
-/** Read recordings, run the pipeline, write the outputs, print the summary. Shared by plan and demo. */
-export async function planFromFiles(files: string[], readOptions: ReadRecordingOptions, v: PipelineCliValues, defaultOut: string): Promise<number> {
-  const options = pipelineOptions(v);
+/** How plan inputs are taken in (plan only; demo uses the defaults). */
+export interface PlanInputOptions {
+  /** Extraction threads; default one per core, at most 2. */
+  workers?: number;
+  /** Plan a shard folder even when some expected recordings have no shard. */
+  allowIncomplete?: boolean;
+}
+
+/**
+ * Take in recordings and/or shards, plan, write the outputs, print the summary. Shared by plan and
+ * demo. Tracks files are extracted on worker threads, one recording per thread at a time, and only
+ * their scenario rows are kept; shards are read back as they were extracted. Results are merged in
+ * input order, so the plan does not depend on the number of workers, and planning from shards
+ * gives the same bytes as planning from their recordings in the same order.
+ */
+export async function planFromFiles(args: string[], readOptions: ReadRecordingOptions, v: PipelineCliValues, defaultOut: string, inputOptions: PlanInputOptions = {}): Promise<number> {
+  const options = resolvePipelineOptions(pipelineOptions(v));
   const out = resolve(v.out ?? defaultOut);
   const display = progressDisplay(process.stderr, Boolean(v.quiet));
   const progress: Progress = display.progress;
-  const recordings: Recording[] = [];
   try {
-    for (const f of files) recordings.push(await readRecording(f, { ...readOptions, progress }));
-    for (const r of recordings) for (const rj of r.rejected) process.stderr.write(`\nrejected: ${r.source}: track ${rj.trackId}${rj.row !== undefined ? ` (row ${rj.row})` : ""}: ${rj.reason}\n`);
-    const result = runPipeline(recordings, options, progress);
+    const { inputs, warnings: inputWarnings } = await planInputs(args, { allowIncomplete: inputOptions.allowIncomplete });
+    const t0 = performance.now();
+    const extracted = await collectExtractions(inputs, readOptions, options, {
+      workers: inputOptions.workers,
+      progress,
+      onRejected: (source, rejected) => {
+        for (const rj of rejected) process.stderr.write(`\nrejected: ${source}: track ${rj.trackId}${rj.row !== undefined ? ` (row ${rj.row})` : ""}: ${rj.reason}\n`);
+      },
+    });
+    const extractWall = (performance.now() - t0) / 1000;
+    const result = planCatalogue(
+      extracted.map((x) => x.set),
+      extracted.map((x) => x.summary),
+      extracted.map((x) => x.maneuvers),
+      options,
+      progress,
+    );
+    // Stage seconds as before (summed over recordings, whichever thread ran them), then planning.
+    const timings: Record<string, number> = {};
+    for (const x of extracted) for (const [k, s] of Object.entries(x.timings)) timings[k] = (timings[k] ?? 0) + s;
+    timings["extraction (wall)"] = extractWall;
+    for (const [k, s] of Object.entries(result.timings)) timings[k] = (timings[k] ?? 0) + s;
+    result.timings = timings;
+    // OpenSCENARIO needs the tracks: read again, after planning, only the recordings test cases use.
+    let recordings: Recording[] | undefined;
+    if (v.openscenario) {
+      const used = new Set([...result.plan.testCases.flatMap((tc) => (tc.source ? [tc.source.recording] : [])), ...result.plan.logicalScenarios.map((ls) => ls.representative.recording)]);
+      recordings = [];
+      for (const s of result.recordings) if (used.has(s.id)) recordings.push(await readRecording(s.source, { ...readOptions, id: s.id, progress }));
+    }
     const written = await writeOutputs(result, out, {
       catalogue: !v["no-catalogue"],
       parquet: Boolean(v.parquet),
-      openScenario: v.openscenario ? recordings : undefined,
+      openScenario: recordings,
       progress,
     });
     display.done();
@@ -147,6 +191,7 @@ export async function planFromFiles(files: string[], readOptions: ReadRecordingO
       .join(", ");
     process.stdout.write(`timings: ${t}\n`);
     for (const w of written.files) process.stdout.write(`wrote ${w}\n`);
+    for (const w of inputWarnings) process.stderr.write(`warning: ${w}\n`);
     for (const w of written.warnings) process.stderr.write(`warning: ${w}\n`);
     return 0;
   } finally {
@@ -154,9 +199,12 @@ export async function planFromFiles(files: string[], readOptions: ReadRecordingO
   }
 }
 
-const HELP = `roadsieve plan TRACKS... [options]
+const HELP = `roadsieve plan INPUT... [options]
 
-Read recordings (CSV or Parquet tracks, one row per object per frame, with a road description),
+Each INPUT is a tracks file (CSV or Parquet, one row per object per frame, with a road
+description), a shard written by \`roadsieve extract\` (NAME.shard.json), or a folder of shards
+(planned in the order of its expected.json, else by name; with an expected.json, every listed
+recording must have its shard unless --allow-incomplete). Read recordings,
 detect every vehicle's maneuvers, cut every drive into scenarios, cluster them, pick a real
 recorded medoid per cluster, keep rare and critical scenarios on their own, and write:
   DIR/plan.json        the test plan (schema: docs/plan.md)
@@ -168,9 +216,16 @@ recorded medoid per cluster, keep rare and critical scenarios on their own, and 
 Options:
 ${RECORDING_HELP}
 ${PIPELINE_HELP}
+  --workers N          extraction threads, one recording per thread at a time (default: cores, at most 2)
+  --allow-incomplete   plan a shard folder even when expected recordings have no shard (says which)
 
-Example:
+Planning from shards gives the same plan.json, byte for byte, as planning from their recordings
+in the same order with the same options. A shard from another tool version or extracted with
+other options is refused, naming both.
+
+Examples:
   roadsieve plan recordings/day1/tracks.parquet recordings/day2/tracks.csv --budget 40 --out plan-q3
+  roadsieve plan shards/ --budget 40 --out plan-q3
 `;
 
 export const planCommand: Command = {
@@ -180,12 +235,13 @@ export const planCommand: Command = {
   async run(argv) {
     const { values, positionals } = parseArgs({
       args: argv,
-      options: { ...RECORDING_OPTIONS, ...PIPELINE_CLI_OPTIONS },
+      options: { ...RECORDING_OPTIONS, ...PIPELINE_CLI_OPTIONS, workers: { type: "string" }, "allow-incomplete": { type: "boolean", default: false } },
       strict: true,
       allowPositionals: true,
     });
-    if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet); roadsieve plan --help");
+    if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet), shard or shard folder; roadsieve plan --help");
     const readOptions = await recordingOptions(values);
-    return planFromFiles(positionals, readOptions, values, "out");
+    const workers = numberOption("workers", values.workers, { integer: true, min: 1 });
+    return planFromFiles(positionals, readOptions, values, "out", { workers, allowIncomplete: values["allow-incomplete"] });
   },
 };
