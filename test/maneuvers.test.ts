@@ -143,12 +143,12 @@ describe("detectManeuvers: lateral", () => {
     expect(ok / tr.t.length).toBeGreaterThan(0.93);
   });
 
-  it("flags braking harder than harshDecel (3 m/s², common practice)", () => {
+  it("flags braking harder than decelAbove (3 m/s², common practice)", () => {
     const m = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), opts);
     const dec = lon(m).filter((g) => g.maneuver === "decelerate");
     expect(dec).toHaveLength(1);
     expect(dec[0]!.flags).toContain("harsh-braking");
-    const mild = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), { ...opts, harshDecel: 6 });
+    const mild = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), { ...opts, decelAbove: 6 });
     expect(lon(mild).find((g) => g.maneuver === "decelerate")!.flags).not.toContain("harsh-braking");
   });
 

@@ -13,6 +13,11 @@ const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : nul
  * The catalogue as tables: recordings, scenarios (with cluster, type key and test case), features
  * (one column per named feature), maneuvers (every segment) and test cases. Infinite TTC / THW
  * ("never closing", "no leader") are stored as NULL.
+ *
+ * Column names follow one rule, shared with plan.csv and the Parquet exports: a column holding a
+ * physical quantity ends in its SI unit (_s, _m, _mps, _mps2); km and hours are named by their
+ * unit (km, hours, vehicle_km); shares, counts, ids and codes carry no suffix. Feature columns keep
+ * their feature names; their units are in the feature_info table.
  */
 export function catalogueTables(r: PipelineResult): Table[] {
   const sc = r.scenarios.scenarios;
@@ -28,20 +33,20 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "ego_track", type: "BIGINT", values: sc.map((s) => s.egoTrack) },
       { name: "ego_kind", type: "VARCHAR", values: sc.map((s) => s.egoKind) },
       { name: "window_index", type: "INTEGER", values: sc.map((s) => s.window) },
-      { name: "t_start", type: "DOUBLE", values: sc.map((s) => s.tStart) },
-      { name: "t_end", type: "DOUBLE", values: sc.map((s) => s.tEnd) },
-      { name: "seconds", type: "DOUBLE", values: sc.map((s) => s.seconds) },
+      { name: "t_start_s", type: "DOUBLE", values: sc.map((s) => s.tStart) },
+      { name: "t_end_s", type: "DOUBLE", values: sc.map((s) => s.tEnd) },
+      { name: "duration_s", type: "DOUBLE", values: sc.map((s) => s.seconds) },
       { name: "km", type: "DOUBLE", values: sc.map((s) => s.km) },
-      { name: "mean_speed", type: "DOUBLE", values: sc.map((s) => s.meanSpeed) },
+      { name: "mean_speed_mps", type: "DOUBLE", values: sc.map((s) => s.meanSpeed) },
       { name: "lane_start", type: "INTEGER", values: sc.map((s) => s.laneStart) },
       { name: "lane_end", type: "INTEGER", values: sc.map((s) => s.laneEnd) },
       { name: "lateral", type: "VARCHAR", values: sc.map((s) => s.lateral.join(">")) },
       { name: "longitudinal", type: "VARCHAR", values: sc.map((s) => s.longitudinal.join(">")) },
       { name: "events", type: "VARCHAR", values: sc.map((s) => s.events.map((e) => `${e.kind}@${e.t.toFixed(2)}#${e.other}`).join(" ")) },
-      { name: "min_ttc", type: "DOUBLE", values: sc.map((s) => finiteOrNull(s.criticality.minTtc)) },
-      { name: "min_thw", type: "DOUBLE", values: sc.map((s) => finiteOrNull(s.criticality.minThw)) },
-      { name: "max_drac", type: "DOUBLE", values: sc.map((s) => s.criticality.maxDrac) },
-      { name: "max_decel", type: "DOUBLE", values: sc.map((s) => s.criticality.maxDecel) },
+      { name: "min_ttc_s", type: "DOUBLE", values: sc.map((s) => finiteOrNull(s.criticality.minTtc)) },
+      { name: "min_thw_s", type: "DOUBLE", values: sc.map((s) => finiteOrNull(s.criticality.minThw)) },
+      { name: "max_drac_mps2", type: "DOUBLE", values: sc.map((s) => s.criticality.maxDrac) },
+      { name: "max_decel_mps2", type: "DOUBLE", values: sc.map((s) => s.criticality.maxDecel) },
       { name: "flags", type: "VARCHAR", values: sc.map((s) => s.criticality.flags.join(" ")) },
       { name: "type_key", type: "VARCHAR", values: r.typeKeys },
       { name: "cluster", type: "INTEGER", values: r.labels },
@@ -127,16 +132,16 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "track", type: "BIGINT", values: m.track },
       { name: "axis", type: "VARCHAR", values: m.axis },
       { name: "maneuver", type: "VARCHAR", values: m.maneuver },
-      { name: "t_start", type: "DOUBLE", values: m.tStart },
-      { name: "t_end", type: "DOUBLE", values: m.tEnd },
-      { name: "duration", type: "DOUBLE", values: m.duration },
-      { name: "start_speed", type: "DOUBLE", values: m.startSpeed },
-      { name: "end_speed", type: "DOUBLE", values: m.endSpeed },
-      { name: "mean_accel", type: "DOUBLE", values: m.meanAccel },
-      { name: "peak_accel", type: "DOUBLE", values: m.peakAccel },
-      { name: "lateral_displacement", type: "DOUBLE", values: m.displacement },
-      { name: "peak_lateral_speed", type: "DOUBLE", values: m.peakLat },
-      { name: "t_cross", type: "DOUBLE", values: m.tCross },
+      { name: "t_start_s", type: "DOUBLE", values: m.tStart },
+      { name: "t_end_s", type: "DOUBLE", values: m.tEnd },
+      { name: "duration_s", type: "DOUBLE", values: m.duration },
+      { name: "start_speed_mps", type: "DOUBLE", values: m.startSpeed },
+      { name: "end_speed_mps", type: "DOUBLE", values: m.endSpeed },
+      { name: "mean_accel_mps2", type: "DOUBLE", values: m.meanAccel },
+      { name: "peak_accel_mps2", type: "DOUBLE", values: m.peakAccel },
+      { name: "lateral_displacement_m", type: "DOUBLE", values: m.displacement },
+      { name: "peak_lateral_speed_mps", type: "DOUBLE", values: m.peakLat },
+      { name: "t_cross_s", type: "DOUBLE", values: m.tCross },
       { name: "from_lane", type: "INTEGER", values: m.fromLane },
       { name: "to_lane", type: "INTEGER", values: m.toLane },
       { name: "boundary_method", type: "VARCHAR", values: m.boundaryMethod },
@@ -162,8 +167,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "rate_upper", type: "DOUBLE", values: tc.map((t) => t.standsFor.ratePer1000km.upper) },
       { name: "exposure_aid", type: "VARCHAR", values: tc.map((t) => t.standsFor.exposureClass) },
       { name: "members", type: "INTEGER", values: tc.map((t) => t.memberCount) },
-      { name: "min_ttc", type: "DOUBLE", values: tc.map((t) => t.criticality.minTtc) },
-      { name: "min_thw", type: "DOUBLE", values: tc.map((t) => t.criticality.minThw) },
+      { name: "min_ttc_s", type: "DOUBLE", values: tc.map((t) => t.criticality.minTtc) },
+      { name: "min_thw_s", type: "DOUBLE", values: tc.map((t) => t.criticality.minThw) },
+      { name: "max_decel_mps2", type: "DOUBLE", values: tc.map((t) => t.criticality.maxDecel) },
       { name: "reasons", type: "VARCHAR", values: tc.map((t) => t.reasons.join("; ")) },
     ],
   };

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
@@ -100,9 +101,9 @@ function resolveOptions(X: Matrix, k: number, o: KMeansOptions): ResolvedKMeansO
   const threadsOpt = checkThreads(o.threads ?? "auto");
   const wanted = threadsOpt === "auto" ? autoThreads() : threadsOpt;
   const threads = X.rows < MIN_ROWS_FOR_THREADS ? 1 : Math.max(1, Math.min(wanted, Math.floor(X.rows / 25_000)));
-  const nInitDefault = init === "k-means++" ? 3 : 1;
+  const nInitDefault = init === "k-means++" ? DEFAULTS.nInit : 1;
   return {
-    rng: o.rng ?? new Rng(o.seed ?? 0),
+    rng: o.rng ?? new Rng(o.seed ?? DEFAULTS.seed),
     init,
     nInit: checkInt("nInit", o.nInit ?? nInitDefault, 1),
     maxIter: checkInt("maxIter", o.maxIter ?? 300, 1),

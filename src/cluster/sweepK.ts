@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
@@ -8,9 +9,11 @@ import { calinskiHarabasz, daviesBouldin, meanIgnoringNaN, SILHOUETTE_SAMPLE_SIZ
 import { condensedDistances, silhouetteFromCondensed } from "./_pairwise.js";
 
 export interface SweepKOptions extends Omit<KMeansOptions, "init" | "progress"> {
-  /** Smallest k tried (>= 2). Default 2. */
+  /** Range of k tried, [kMin, kMax] (kMin >= 2), the same option as the pipeline's. Default DEFAULTS.kRange = [2, 12], kMax capped at n - 1. */
+  kRange?: readonly [number, number];
+  /** @deprecated use kRange: [kMin, kMax] (accepted for one version). */
   kMin?: number;
-  /** Largest k tried. Default min(10, n - 1). */
+  /** @deprecated use kRange: [kMin, kMax] (accepted for one version). */
   kMax?: number;
   /**
    * Silhouette on all rows up to this many, else on a seeded sample of this size. Default 5000, or
@@ -79,13 +82,13 @@ export const SWEEP_RULE =
  */
 export function sweepK(X: Matrix, options: SweepKOptions = {}): SweepKResult {
   checkMatrix(X, "X");
-  const kMin = checkInt("kMin", options.kMin ?? 2, 2);
-  const kMax = checkInt("kMax", options.kMax ?? Math.min(10, X.rows - 1), kMin);
+  const kMin = checkInt("kRange[0]", options.kRange?.[0] ?? options.kMin ?? DEFAULTS.kRange[0], 2);
+  const kMax = checkInt("kRange[1]", options.kRange?.[1] ?? options.kMax ?? Math.min(DEFAULTS.kRange[1], X.rows - 1), kMin);
   if (kMax > X.rows - 1) throw new InputError(`kMax=${kMax} should be <= n_samples - 1 = ${X.rows - 1}`);
   const fitSize = checkInt("fitSampleSize", options.fitSampleSize ?? SWEEP_FIT_SAMPLE_SIZE, Math.max(kMax + 1, 2));
   const sampleSize = checkInt("silhouetteSampleSize", options.silhouetteSampleSize ?? (X.rows > fitSize ? SWEEP_SAMPLED_SILHOUETTE_SIZE : SILHOUETTE_SAMPLE_SIZE), 2);
-  const rng = options.rng ?? new Rng(options.seed ?? 0);
-  const { kMin: _a, kMax: _b, silhouetteSampleSize: _c, fitSampleSize: _d, progress, ...kmOptions } = options;
+  const rng = options.rng ?? new Rng(options.seed ?? DEFAULTS.seed);
+  const { kMin: _a, kMax: _b, kRange: _r, silhouetteSampleSize: _c, fitSampleSize: _d, progress, ...kmOptions } = options;
   const N = X.rows;
   // Large inputs: rank k on a seeded uniform sample of rows (the ranking needs far fewer rows than
   // the final fit), keeping each row's weight. Small inputs run exactly as before.

@@ -9,3 +9,4 @@ export { writeFileAtomic, sha256File, sha256Text } from "./io.js";
 export { VERSION } from "./version.js";
 export { openOutputFolder } from "./outputFolder.js";
 export type { OutputFolder, Manifest, ManifestInput } from "./outputFolder.js";
+export { DEFAULTS } from "./defaults.js";

@@ -222,7 +222,7 @@ export function fitLogicalScenarios(scenarios: readonly Scenario[], weights: Flo
     const used = new Set(Array.from(labels)).size;
     if (k >= 2 && used >= 2 && m > used) {
       // A seeded sample of 2000 rows keeps the per-class report cheap (the exact score costs O(m²)).
-      sil = silhouette(X, labels, { rng: rng.fork(`logical/${cls.id}/silhouette`), sampleSize: 2000 }).score;
+      sil = silhouette(X, labels, { rng: rng.fork(`logical/${cls.id}/silhouette`), sampleSize: 2000 });
       ch = calinskiHarabasz(X, labels);
       db = daviesBouldin(X, labels);
     }

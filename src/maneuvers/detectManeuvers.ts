@@ -261,7 +261,7 @@ function pushSegments(
     // A maneuver cut by the end of the observed run has an unknown true extent.
     if (a === runStart && code !== keep) flags.push("at-track-start");
     if (b === runEnd - 1 && code !== keep) flags.push("at-track-end");
-    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.harshDecel) flags.push("harsh-braking");
+    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.decelAbove) flags.push("harsh-braking");
     out.push({
       axis,
       maneuver: axis === "longitudinal" ? LONGITUDINAL[code]! : LATERAL[code]!,

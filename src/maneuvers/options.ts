@@ -1,3 +1,4 @@
+import { renameDeprecated } from "../core/aliases.js";
 import { InputError } from "../core/errors.js";
 
 /** Options of {@link detectManeuvers}; every field has a documented default (docs/maneuvers.md). */
@@ -28,7 +29,9 @@ export interface ManeuverOptions {
    * then shorter keep phases between two phases of the same kind take that kind. Default 1.0.
    */
   minLongitudinalS?: number;
-  /** Braking harder than this is flagged "harsh-braking" (m/s², positive). Default 3.0 (common practice). */
+  /** Braking harder than this is flagged "harsh-braking" (m/s², positive). Default 3.0 (common practice); the same name as the scene's and the plan's. */
+  decelAbove?: number;
+  /** @deprecated use decelAbove (accepted for one version). */
   harshDecel?: number;
   /**
    * A lane change starts and ends where the lateral speed towards the new lane falls back below this
@@ -84,7 +87,7 @@ export interface ManeuverOptions {
   minJudgeS?: number;
 }
 
-type Defaults = Required<Omit<ManeuverOptions, "laneMarkings">>;
+type Defaults = Required<Omit<ManeuverOptions, "laneMarkings" | "harshDecel">>;
 export type ResolvedManeuverOptions = Defaults & { laneMarkings?: number[] };
 
 export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
@@ -94,7 +97,7 @@ export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
   keepAccel: 0.25,
   hysteresis: 0.1,
   minLongitudinalS: 1.0,
-  harshDecel: 3.0,
+  decelAbove: 3.0,
   lateralSpeed: 0.1,
   boundary: "auto",
   crossingRule: "lasting",
@@ -113,13 +116,13 @@ export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
 /** Defaults resolved and every option validated once, at the boundary. */
 export function resolveManeuverOptions(options: ManeuverOptions = {}): ResolvedManeuverOptions {
   const o: ResolvedManeuverOptions = { ...MANEUVER_DEFAULTS };
-  for (const [k, v] of Object.entries(options)) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
+  for (const [k, v] of Object.entries(renameDeprecated(options, { harshDecel: "decelAbove" }, "maneuver options"))) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
   const positive = (name: keyof Defaults): void => {
     const v = o[name] as number;
     if (typeof v !== "number" || !(v > 0) || !Number.isFinite(v))
       throw new InputError(`${name}=${String(v)} should be a finite number > 0`);
   };
-  for (const k of ["windowS", "accelWindowS", "keepAccel", "minLongitudinalS", "harshDecel", "lateralSpeed", "minLaneChangeS", "maxLaneChangeS", "minLaneHoldS", "minJudgeS", "minExcursion", "minDwellS", "minCrossingSpeed"] as const)
+  for (const k of ["windowS", "accelWindowS", "keepAccel", "minLongitudinalS", "decelAbove", "lateralSpeed", "minLaneChangeS", "maxLaneChangeS", "minLaneHoldS", "minJudgeS", "minExcursion", "minDwellS", "minCrossingSpeed"] as const)
     positive(k);
   if (!(o.hysteresis >= 0 && o.hysteresis <= o.keepAccel))
     throw new InputError(`hysteresis=${o.hysteresis} should be >= 0 and <= keepAccel=${o.keepAccel}`);

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import { CLUSTERING_DEFAULTS, resolveClusteringOptions, type ClusteringOptions, type ResolvedClusteringOptions } from "../cluster/fitClustering.js";
 import type { EmbedOptions } from "../embed/features.js";
@@ -62,13 +63,13 @@ export interface ResolvedPipelineOptions {
 }
 
 export const PIPELINE_DEFAULTS = {
-  seed: 1,
-  // The clustering stage's own defaults: one table for the stage and the pipeline.
+  seed: DEFAULTS.seed,
+  // The clustering stage's own defaults (which come from DEFAULTS): one table for the stage and the pipeline.
   kRange: CLUSTERING_DEFAULTS.kRange,
   nInit: CLUSTERING_DEFAULTS.nInit,
   dbscanVariance: CLUSTERING_DEFAULTS.dbscanVariance,
   dbscanMaxComponents: CLUSTERING_DEFAULTS.dbscanMaxComponents,
-  map: "umap" as MapMethod,
+  map: DEFAULTS.map as MapMethod,
   weightBy: "km" as const,
 };
 

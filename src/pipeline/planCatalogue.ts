@@ -174,6 +174,10 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     buildPlanDetailed({ scenarios: scenarios.scenarios, exploration, rng: rng.fork("plan") }, o.plan, { ...o.logical, budget: o.logical.budget ?? o.plan.budget }),
   );
   const plan = detailed.plan;
+  // Every warning of the run goes into plan.json, so that it and the report list the same: the
+  // recordings', the stages' (clustering, 2-D map), then the plan's own.
+  plan.warnings = [...c.summaries.flatMap((s) => s.warnings.map((w) => `${s.id}: ${w}`)), ...warnings, ...map.warnings.map((w) => `2-D map: ${w}`), ...plan.warnings];
+  warnings.length = 0;
   warnings.push(...plan.warnings);
   return {
     options: o,

@@ -64,7 +64,7 @@ export interface Scenario {
   /** Ego motion summary over the window (filled by buildScenarios; the embedding reads it). */
   stats?: ScenarioStats;
   /**
-   * True when the window is shorter than the nominal length (fixed mode) or minSeconds (event mode)
+   * True when the window is shorter than the nominal length (fixed mode) or minS (event mode)
    * because the drive ended or was interrupted by a time gap.
    */
   partial?: boolean;

@@ -103,11 +103,11 @@ export function pipelineOptions(v: PipelineCliValues): PipelineOptions {
   const win = numberOption("window", v.window, { min: 0.5 });
   const ev = v["event-windows"];
   if (win !== undefined && ev !== undefined) throw new UsageError("give --window or --event-windows, not both");
-  if (win !== undefined) o.scenario = { window: { mode: "fixed", seconds: win } };
+  if (win !== undefined) o.scenario = { window: { mode: "fixed", lengthS: win } };
   if (ev !== undefined) {
     const m = /^(\d+(?:\.\d+)?)\.\.(\d+(?:\.\d+)?)$/.exec(ev.trim());
     if (!m || !(Number(m[1]) > 0) || Number(m[2]) < Number(m[1])) throw new UsageError(`--event-windows=${JSON.stringify(ev)} should look like 4..20 (seconds, min..max)`);
-    o.scenario = { window: { mode: "events", minSeconds: Number(m[1]), maxSeconds: Number(m[2]) } };
+    o.scenario = { window: { mode: "events", minS: Number(m[1]), maxS: Number(m[2]) } };
   }
   const critical = choiceOption("critical", v.critical, ["each", "per-type"] as const);
   if (critical) o.plan!.criticalPolicy = critical === "each" ? "each" : "most-critical-per-type";
