@@ -17,6 +17,7 @@ import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
 import type { TestPlan } from "../plan/types.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
+import type { RecordingConditions } from "../recording/conditions.js";
 import type { Recording } from "../recording/types.js";
 import { buildScenarios } from "../scenario/buildScenarios.js";
 import type { ScenarioSet } from "../scenario/types.js";
@@ -30,6 +31,8 @@ export interface RecordingSummary {
   source: string;
   checksum: string;
   road: string;
+  /** The recording's conditions as stated in its road description ({} when none). */
+  conditions: RecordingConditions;
   lanes: number;
   frameRate: number;
   tracks: number;
@@ -117,6 +120,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
       source: rec.source,
       checksum: rec.checksum,
       road: rec.road.name,
+      conditions: { ...(rec.road.conditions ?? {}) },
       lanes: rec.road.laneMarkings.length - 1,
       frameRate: rec.road.frameRate,
       tracks: rec.tracks.length,
@@ -177,6 +181,10 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
 
   const inputChecksums: Record<string, string> = {};
   for (const r of summaries) inputChecksums[r.source] = r.checksum;
+  // Conditions go into the provenance only when some recording states them, so that plans of
+  // recordings without conditions keep their bytes.
+  const recordingConditions: Record<string, RecordingConditions> = {};
+  for (const r of summaries) if (Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
   const plan = timed("test plan", () =>
     buildTestPlan(
       {
@@ -202,6 +210,7 @@ export function runPipeline(recordings: Recording[], options: PipelineOptions = 
             dbscan: db ? { eps: db.eps, minPts: db.minPts, components: db.components } : false,
             map: o.map,
             weightBy: o.weightBy,
+            ...(Object.keys(recordingConditions).length > 0 ? { recordingConditions } : {}),
           },
         },
         progress,
