@@ -22,3 +22,4 @@ export * from "./plan/index.js";
 export * from "./pipeline/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";
+export * from "./compare/index.js";
