@@ -10,7 +10,7 @@ import { checkLevel } from "../exposure/poissonInterval.js";
 import type { CategoryKind } from "../catalogue/scenarioCategories.js";
 import type { CatalogueSample } from "./catalogueSample.js";
 import { catalogueDifferences } from "./catalogueDifferences.js";
-import { homogeneityTest, poolSparseCategories, type TestStatistic } from "./homogeneityTest.js";
+import { coarsenSparseCategories, homogeneityTest, typeKeyParent, type TestStatistic } from "./homogeneityTest.js";
 import { chiSquarePermutationTest, energyDistanceTest, type PermutationResult, type PermutationUnits } from "./permutationTests.js";
 import { newcombeDifference, type ProportionInterval } from "./proportionDifference.js";
 
@@ -100,8 +100,11 @@ export interface CatalogueComparison {
   onlyInB: string[];
   /** Homogeneity of the category frequencies (counts of scenarios). */
   frequency: {
-    /** Columns of the tested table (after pooling sparse categories). */
+    /** Columns of the tested table (after merging sparse categories into coarser ones and pooling the rest). */
     categories: string[];
+    /** Category → the column it went into, for every category that is not a column of its own. */
+    merged: Record<string, string>;
+    /** Columns (after merging) that went into "(pooled)". */
     pooled: string[];
     counts: number[][];
     minExpected: number;
@@ -198,7 +201,8 @@ export function compareCatalogues(a: CatalogueSample, b: CatalogueSample, option
   const onlyInB = categories.filter((c) => c.seenIn === "b only").map((c) => c.category);
 
   // Frequency test on the pooled table.
-  const pooled = poolSparseCategories(allCats, [A.count, B.count], o.minExpected);
+  // Sparse type keys merge into their coarser keys first (classes have no parent), then the rest is pooled.
+  const pooled = coarsenSparseCategories(allCats, [A.count, B.count], o.minExpected, a.categoryKind === "type key" ? typeKeyParent : () => null);
   let chiSquare: TestStatistic;
   let gTest: TestStatistic;
   let minE = 0;
@@ -212,11 +216,12 @@ export function compareCatalogues(a: CatalogueSample, b: CatalogueSample, option
     gTest = h.gTest;
     minE = h.minExpected;
   }
-  if (pooled.pooled.length > 0) warnings.push(`${pooled.pooled.length} of ${K} categories with expected counts below ${o.minExpected} are pooled into one column for the frequency test`);
+  const mergedCount = Object.keys(pooled.merged).length;
+  if (mergedCount > 0)
+    warnings.push(`${mergedCount} of ${K} categories with expected counts below ${o.minExpected} were merged into coarser ones${pooled.pooled.length > 0 ? ` (${pooled.pooled.length} of those into one pooled column)` : ""} for the frequency test; the table has ${pooled.names.length} columns`);
   const colOf = new Map<string, number>();
   pooled.names.forEach((nm, j) => colOf.set(nm, j));
-  const pooledCol = colOf.get("(pooled)");
-  const cat = Int32Array.from([...a.categories, ...b.categories], (c) => colOf.get(c) ?? pooledCol!);
+  const cat = Int32Array.from([...a.categories, ...b.categories], (c) => colOf.get(pooled.merged[c] ?? c)!);
   const units = permutationUnits(a, b, o.unit);
   const permutation = chiSquarePermutationTest(cat, pooled.names.length, units, { permutations: o.permutations, rng: rng.fork("chi-square permutations") });
 
@@ -240,7 +245,7 @@ export function compareCatalogues(a: CatalogueSample, b: CatalogueSample, option
     categories,
     onlyInA,
     onlyInB,
-    frequency: { categories: pooled.names, pooled: pooled.pooled, counts: pooled.counts, minExpected: minE, chiSquare, gTest, permutation },
+    frequency: { categories: pooled.names, merged: pooled.merged, pooled: pooled.pooled, counts: pooled.counts, minExpected: minE, chiSquare, gTest, permutation },
     embedding,
     discovery: { a: dA, b: dB, atEqualEffort },
     options: o,

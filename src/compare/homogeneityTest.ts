@@ -101,3 +101,66 @@ export function poolSparseCategories(
   }
   return { names: outNames, counts: outCounts, pooled: [...pooledIdx].map((j) => names[j]!).sort() };
 }
+
+/**
+ * The next coarser type key: the last part replaced by "*" ("LK|K|occ:ahead|ev:-" → "LK|K|occ:ahead|*"
+ * → "LK|K|*" → "LK|*"), null at the top. Used to merge sparse type keys with their relatives before
+ * anything is pooled into one column.
+ */
+export function typeKeyParent(key: string): string | null {
+  const parts = key.split("|");
+  while (parts.length > 0 && parts[parts.length - 1] === "*") parts.pop();
+  if (parts.length <= 1) return null;
+  parts.pop();
+  return `${parts.join("|")}|*`;
+}
+
+/**
+ * Merge sparse categories into coarser ones before pooling: every column whose expected count in the
+ * smallest group is below `minExpected` is renamed to its parent (`parentOf`), columns of equal name
+ * are merged, and this repeats while it changes anything; what is still sparse is then pooled by
+ * poolSparseCategories. Keeps as much of the categories' meaning in the test as the counts allow.
+ */
+export function coarsenSparseCategories(
+  names: readonly string[],
+  counts: readonly (readonly number[])[],
+  minExpected: number,
+  parentOf: (name: string) => string | null,
+): { names: string[]; counts: number[][]; pooled: string[]; merged: Record<string, string> } {
+  const rowSum = counts.map((r) => r.reduce((a, b) => a + b, 0));
+  const total = rowSum.reduce((a, b) => a + b, 0);
+  const minRow = Math.min(...rowSum.filter((s) => s > 0));
+  const need = (minExpected * total) / minRow;
+  // Column → its current name; merge by name.
+  let current = new Map<string, number[]>();
+  const origin = new Map<string, string[]>();
+  names.forEach((nm, j) => {
+    current.set(nm, counts.map((r) => r[j]!));
+    origin.set(nm, [nm]);
+  });
+  for (let changed = true; changed; ) {
+    changed = false;
+    const next = new Map<string, number[]>();
+    const nextOrigin = new Map<string, string[]>();
+    for (const [nm, col] of current) {
+      const sum = col.reduce((a, b) => a + b, 0);
+      const parent = sum < need ? parentOf(nm) : null;
+      const to = parent ?? nm;
+      if (parent !== null) changed = true;
+      const have = next.get(to);
+      if (have) col.forEach((v, i) => (have[i]! += v));
+      else next.set(to, [...col]);
+      nextOrigin.set(to, [...(nextOrigin.get(to) ?? []), ...origin.get(nm)!]);
+    }
+    current = next;
+    origin.clear();
+    for (const [k, v] of nextOrigin) origin.set(k, v);
+  }
+  const mergedNames = [...current.keys()].sort();
+  const mergedCounts = counts.map((_, i) => mergedNames.map((nm) => current.get(nm)![i]!));
+  const merged: Record<string, string> = {};
+  for (const [to, from] of [...origin.entries()].sort(([x], [y]) => (x < y ? -1 : 1))) for (const f of from.sort()) if (f !== to) merged[f] = to;
+  const p = poolSparseCategories(mergedNames, mergedCounts, minExpected);
+  for (const nm of p.pooled) for (const f of origin.get(nm)!) merged[f] = "(pooled)";
+  return { names: p.names, counts: p.counts, pooled: p.pooled, merged };
+}
