@@ -1,6 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { Rng } from "../src/core/rng.js";
 import { compensatedSum } from "../src/exposure/compensatedSum.js";
+import { extractRecording } from "../src/pipeline/extractRecording.js";
+import { planCatalogue } from "../src/pipeline/planCatalogue.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
 import { testPlanToJson } from "../src/plan/planJson.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
@@ -72,6 +74,14 @@ describe("runPipeline(recordings) on generated traffic", () => {
     const other = runPipeline([rec], { seed: 6, map: "pca", k: result.k });
     expect(Array.from(other.map.coords.data)).toEqual(Array.from(result.map.coords.data)); // PCA has no randomness
     expect(other.plan.provenance.seed).toBe(6);
+  });
+
+  it("is the two halves wired in order: extractRecording then planCatalogue give runPipeline's plan byte for byte", () => {
+    // The one-call path is defined as this composition (issue 12: the step-by-step path must agree).
+    const x = extractRecording(rec, { seed: 5, map: "pca" });
+    expect(x.summary.scenarios).toBe(sc.length);
+    const r = planCatalogue([x.set], [x.summary], [x.maneuvers], { seed: 5, map: "pca" });
+    expect(testPlanToJson(r.plan)).toBe(testPlanToJson(result.plan));
   });
 
   it("rejects a k larger than the number of scenarios with a message quoting both", () => {

@@ -1,6 +1,9 @@
-/** The whole chain in one call, and writing its outputs. */
+/** The whole chain in one call, its two halves, and writing its outputs. */
 export { runPipeline } from "./runPipeline.js";
-export type { PipelineResult, RecordingSummary } from "./runPipeline.js";
+export { extractRecording } from "./extractRecording.js";
+export type { ExtractedRecording, RecordingSummary } from "./extractRecording.js";
+export { planCatalogue } from "./planCatalogue.js";
+export type { PipelineResult } from "./planCatalogue.js";
 export { resolvePipelineOptions, PIPELINE_DEFAULTS } from "./options.js";
 export type { PipelineOptions, ResolvedPipelineOptions, MapMethod } from "./options.js";
 export { mergeScenarioSets } from "./mergeScenarioSets.js";

@@ -1,248 +1,38 @@
 import { InputError } from "../core/errors.js";
-import { Rng } from "../core/rng.js";
-import { zeros, type Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
-import { VERSION } from "../core/version.js";
-import { dbscan, type DbscanResult } from "../cluster/dbscan.js";
-import { kmeans, type KMeansResult } from "../cluster/kmeans.js";
-import { medoids as exactMedoids, type MedoidsResult } from "../cluster/medoids.js";
-import { suggestEps, type SuggestEpsResult } from "../cluster/suggestEps.js";
-import { sweepK, type SweepKResult } from "../cluster/sweepK.js";
-import { embedScenarios, type Embedding } from "../embed/features.js";
-import { map2d } from "../embed/map2d.js";
-import { pca } from "../embed/pca.js";
-import { scenarioWeights } from "../exposure/sampleWeights.js";
-import { detectAllManeuvers } from "../maneuvers/detectAllManeuvers.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
-import { buildTestPlan } from "../plan/buildTestPlan.js";
-import type { TestPlan } from "../plan/types.js";
-import { scenarioTypeKeys } from "../coverage/typeKey.js";
-import type { RecordingConditions } from "../recording/conditions.js";
 import type { Recording } from "../recording/types.js";
-import { buildScenarios } from "../scenario/buildScenarios.js";
 import type { ScenarioSet } from "../scenario/types.js";
-import { buildScenes } from "../scene/buildScenes.js";
-import { mergeScenarioSets } from "./mergeScenarioSets.js";
-import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from "./options.js";
+import { extractRecording, type RecordingSummary } from "./extractRecording.js";
+import { resolvePipelineOptions, type PipelineOptions } from "./options.js";
+import { checkDistinctIds, planCatalogue, type PipelineResult } from "./planCatalogue.js";
 
-/** What a recording contributed, for reports and provenance. */
-export interface RecordingSummary {
-  id: string;
-  source: string;
-  checksum: string;
-  road: string;
-  /** The recording's conditions as stated in its road description ({} when none). */
-  conditions: RecordingConditions;
-  lanes: number;
-  frameRate: number;
-  tracks: number;
-  rows: number;
-  rejected: number;
-  scenarios: number;
-  km: number;
-  hours: number;
-  warnings: string[];
-}
-
-/** Everything a pipeline run produced: each stage's result, kept for reports, notebooks and the catalogue. */
-export interface PipelineResult {
-  options: ResolvedPipelineOptions;
-  recordings: RecordingSummary[];
-  /** Maneuvers per recording (same order as `recordings`), per track. */
-  maneuvers: TrackManeuvers[][];
-  scenarios: ScenarioSet;
-  embedding: Embedding;
-  /** Sample weights used in clustering (km or hours per scenario). */
-  weights: Float64Array;
-  sweep: SweepKResult | null;
-  k: number;
-  kmeans: KMeansResult;
-  /** DBSCAN on the leading principal components, when it ran. */
-  dbscan: (DbscanResult & { components: number; explainedVariance: number; epsSuggestion: SuggestEpsResult | null }) | null;
-  /** Final labels: the k-means cluster, or -1 where DBSCAN called the scenario noise (rare). */
-  labels: Int32Array;
-  medoids: MedoidsResult;
-  typeKeys: string[];
-  map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
-  plan: TestPlan;
-  /** Seconds per stage. */
-  timings: Record<string, number>;
-  warnings: string[];
-}
+export type { RecordingSummary } from "./extractRecording.js";
+export type { PipelineResult } from "./planCatalogue.js";
 
 /**
- * The whole chain for recordings already read: maneuvers → neighbours → scenario windows →
- * embedding → k-means (k by silhouette unless given) with DBSCAN noise as the rare scenarios →
- * exact medoids → 2-D map → test plan. Pure: no files are read or written here.
+ * The whole chain for recordings already read, as wiring only: `extractRecording` per recording
+ * (maneuvers → neighbours → scenario windows), then `planCatalogue` on all of them (embedding →
+ * clustering → medoids → 2-D map → test plan). A notebook that calls the same two functions in the
+ * same order gets the same plan, byte for byte. Pure: no files are read or written here.
  */
 export function runPipeline(recordings: Recording[], options: PipelineOptions = {}, progress?: Progress): PipelineResult {
   const o = resolvePipelineOptions(options);
-  const rng = new Rng(o.seed);
-  const timings: Record<string, number> = {};
-  const warnings: string[] = [];
-  const timed = <T>(name: string, f: () => T): T => {
-    const t0 = performance.now();
-    const r = f();
-    timings[name] = (timings[name] ?? 0) + (performance.now() - t0) / 1000;
-    return r;
-  };
   if (recordings.length === 0) throw new InputError("runPipeline needs at least one recording");
-  const seen = new Map<string, string>();
-  for (const rec of recordings) {
-    const other = seen.get(rec.id);
-    if (other !== undefined)
-      throw new InputError(`two recordings have the id "${rec.id}" (${other} and ${rec.source}); scenario ids would collide — give each its own id (readRecording option id)`);
-    seen.set(rec.id, rec.source);
-  }
-
+  checkDistinctIds(recordings);
   const sets: ScenarioSet[] = [];
   const maneuvers: TrackManeuvers[][] = [];
   const summaries: RecordingSummary[] = [];
+  const timings: Record<string, number> = {};
   for (const rec of recordings) {
-    const m = timed("maneuvers", () => detectAllManeuvers(rec, o.maneuvers, progress));
-    const scenes = timed("neighbours", () => buildScenes(rec, m, o.scene, progress));
-    const set = timed("scenarios", () => buildScenarios(rec, m, scenes, o.scenario, progress));
-    maneuvers.push(m);
-    sets.push(set);
-    let rows = 0;
-    for (const t of rec.tracks) rows += t.t.length;
-    let km = 0;
-    let seconds = 0;
-    for (const s of set.scenarios) {
-      km += s.km;
-      seconds += s.seconds;
-    }
-    const recWarnings = [...rec.warnings];
-    for (const tm of m) for (const w of tm.warnings) recWarnings.push(`track ${tm.trackId}: ${w}`);
-    for (const w of set.warnings) recWarnings.push(w);
-    summaries.push({
-      id: rec.id,
-      source: rec.source,
-      checksum: rec.checksum,
-      road: rec.road.name,
-      conditions: { ...(rec.road.conditions ?? {}) },
-      lanes: rec.road.laneMarkings.length - 1,
-      frameRate: rec.road.frameRate,
-      tracks: rec.tracks.length,
-      rows,
-      rejected: rec.rejected.length,
-      scenarios: set.scenarios.length,
-      km,
-      hours: seconds / 3600,
-      warnings: recWarnings,
-    });
+    const x = extractRecording(rec, o, progress);
+    sets.push(x.set);
+    maneuvers.push(x.maneuvers);
+    summaries.push(x.summary);
+    for (const [k, v] of Object.entries(x.timings)) timings[k] = (timings[k] ?? 0) + v;
   }
-  const scenarios = mergeScenarioSets(sets);
-  const n = scenarios.scenarios.length;
-  if (n < 3) throw new InputError(`the recordings gave ${n} scenario(s); clustering needs at least 3`);
-
-  const embedding = timed("embedding", () => embedScenarios(scenarios, o.embedding));
-  const X = embedding.matrix;
-  const weights = scenarioWeights(scenarios.scenarios, o.weightBy);
-
-  let sweep: SweepKResult | null = null;
-  let k = o.k ?? 0;
-  if (o.k === null) {
-    const kMax = Math.min(o.kRange[1], n - 1);
-    const kMin = Math.min(o.kRange[0], kMax);
-    sweep = timed("choose k", () => sweepK(X, { kMin, kMax, rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
-    k = sweep.suggestedK;
-    warnings.push(...sweep.warnings);
-  }
-  if (k > n) throw new InputError(`k=${k} should be <= the number of scenarios (${n})`);
-  const km = timed("k-means", () => kmeans(X, k, { rng: rng.fork("kmeans"), nInit: o.nInit, weights, progress }));
-  warnings.push(...km.warnings);
-
-  const labels = Int32Array.from(km.labels);
-  let db: PipelineResult["dbscan"] = null;
-  if (o.dbscan !== false) {
-    const cfg = o.dbscan;
-    db = timed("DBSCAN", () => {
-      const full = pca(X, Math.min(X.cols, X.rows));
-      let comps = 0;
-      let cum = 0;
-      while (comps < Math.min(cfg.maxComponents, full.explainedVarianceRatio.length) && cum < cfg.variance) cum += full.explainedVarianceRatio[comps++]!;
-      comps = Math.max(1, comps);
-      // The leading `comps` columns of the full decomposition's scores are the comps-component scores.
-      const scores = takeColumns(full.scores, comps);
-      const minPts = cfg.minPts ?? 2 * comps;
-      const sugg = cfg.eps === null ? suggestEps(scores, { minPts, rng: rng.fork("eps") }) : null;
-      const eps = cfg.eps ?? sugg!.eps;
-      const r = dbscan(scores, { eps, minPts, progress });
-      return { ...r, components: comps, explainedVariance: cum, epsSuggestion: sugg };
-    });
-    warnings.push(...db.warnings);
-    for (let i = 0; i < n; i++) if (db.labels[i] === -1) labels[i] = -1;
-  }
-  const med = timed("medoids", () => exactMedoids(X, labels, { progress }));
-  warnings.push(...med.warnings);
-  const typeKeys = timed("type keys", () => scenarioTypeKeys(scenarios.scenarios, o.plan.typeKey));
-  const map = timed("2-D map", () => map2d(X, { method: o.map, rng: rng.fork("map"), progress }));
-
-  const inputChecksums: Record<string, string> = {};
-  for (const r of summaries) inputChecksums[r.source] = r.checksum;
-  // Conditions go into the provenance only when some recording states them, so that plans of
-  // recordings without conditions keep their bytes.
-  const recordingConditions: Record<string, RecordingConditions> = {};
-  for (const r of summaries) if (Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
-  const plan = timed("test plan", () =>
-    buildTestPlan(
-      {
-        scenarios: scenarios.scenarios,
-        labels,
-        medoids: med.indices,
-        embedding: X,
-        typeKeys,
-        clusterMethod: `k-means (k = ${k}${sweep ? ", chosen by silhouette" : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
-        provenance: {
-          seed: o.seed,
-          inputChecksums,
-          createdAt: null,
-          upstream: {
-            tool: `roadsieve ${VERSION}`,
-            maneuvers: o.maneuvers,
-            scene: o.scene,
-            scenario: scenarios.options ?? o.scenario,
-            embedding: o.embedding,
-            k,
-            kRange: o.kRange,
-            nInit: o.nInit,
-            dbscan: db ? { eps: db.eps, minPts: db.minPts, components: db.components } : false,
-            map: o.map,
-            weightBy: o.weightBy,
-            ...(Object.keys(recordingConditions).length > 0 ? { recordingConditions } : {}),
-          },
-        },
-        progress,
-      },
-      o.plan,
-    ),
-  );
-  warnings.push(...plan.warnings);
-  return {
-    options: o,
-    recordings: summaries,
-    maneuvers,
-    scenarios,
-    embedding,
-    weights,
-    sweep,
-    k,
-    kmeans: km,
-    dbscan: db,
-    labels,
-    medoids: med,
-    typeKeys,
-    map,
-    plan,
-    timings,
-    warnings,
-  };
-}
-
-/** The first `c` columns of a matrix, as a new matrix. */
-function takeColumns(m: Matrix, c: number): Matrix {
-  const out = zeros(m.rows, c);
-  for (let i = 0; i < m.rows; i++) out.data.set(m.data.subarray(i * m.cols, i * m.cols + c), i * c);
-  return out;
+  const result = planCatalogue(sets, summaries, maneuvers, o, progress);
+  for (const [k, v] of Object.entries(result.timings)) timings[k] = (timings[k] ?? 0) + v;
+  result.timings = timings;
+  return result;
 }
