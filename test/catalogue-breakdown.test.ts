@@ -12,6 +12,7 @@ import { runPipeline } from "../src/pipeline/runPipeline.js";
 import { validateConditions } from "../src/recording/conditions.js";
 import { readRoad } from "../src/recording/readRoad.js";
 import type { Scenario } from "../src/scenario/types.js";
+import { buildReport } from "../src/report/buildReport.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 
 const dir = mkdtempSync(join(tmpdir(), "roadsieve-breakdown-"));
@@ -111,5 +112,17 @@ describe("breakdown", () => {
     });
     const single = await queryCatalogue(db, "SELECT type_key FROM scenarios GROUP BY 1 HAVING count(DISTINCT recording) = 1 ORDER BY 1");
     expect([...b.singleRecording].sort()).toEqual(single.map((x) => x.type_key));
+    // The catalogue's recordings table carries the conditions.
+    expect(await queryCatalogue(db, "SELECT id, site, traffic_density, weather FROM recordings ORDER BY id")).toEqual([
+      { id: "dense", site: "Orrowind km 9", traffic_density: "dense", weather: null },
+      { id: "light", site: "Orrowind km 3", traffic_density: "light", weather: null },
+    ]);
+    // The report lists the conditions and breaks the shares down by recording and by each condition with two values.
+    const rep = buildReport(r);
+    const recs = rep.sections.find((x) => x.id === "recordings")!;
+    expect(recs.tables!.at(-1)!.columns).toEqual(["recording", "site", "trafficDensity", "recordingMethod"]);
+    const bd = rep.sections.find((x) => x.id === "breakdown")!;
+    expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Share of km by site", "Share of km by trafficDensity"]);
+    expect(bd.bullets![0]).toContain("rest on one recording only");
   }, 60_000);
 });

@@ -11,6 +11,8 @@ import { shareFigure, type ShareBar } from "./shareFigure.js";
 import type { TestPlan } from "../plan/types.js";
 import { criticalReasons } from "../plan/criticality.js";
 import { resolveTestPlanOptions } from "../plan/options.js";
+import { breakdown } from "../catalogue/breakdown.js";
+import { CONDITION_FIELDS, NOT_GIVEN } from "../recording/conditions.js";
 
 const pct = (x: number, digits = 2): string => `${(100 * x).toFixed(digits)} %`;
 const fix = (x: number | null, digits = 2): string => (x === null || !Number.isFinite(x) ? "–" : x.toFixed(digits));
@@ -208,6 +210,14 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
       },
     ],
   });
+  const stated = CONDITION_FIELDS.filter((f) => r.recordings.some((x) => x.conditions?.[f] !== undefined));
+  if (stated.length > 0)
+    sections[sections.length - 1]!.tables!.push({
+      caption: "Conditions as stated in each road description",
+      columns: ["recording", ...stated],
+      rows: r.recordings.map((x) => [x.id, ...stated.map((f) => x.conditions?.[f] ?? NOT_GIVEN)]),
+    });
+  if (r.recordings.length > 1) sections.push(breakdownSection(r, stated));
   const allWarnings = [...r.recordings.flatMap((x) => x.warnings.map((w) => `${x.id}: ${w}`)), ...r.warnings];
   if (allWarnings.length > 0) sections.push({ id: "warnings", heading: `Warnings (${allWarnings.length})`, bullets: allWarnings.slice(0, 200).concat(allWarnings.length > 200 ? [`… ${allWarnings.length - 200} more in plan.json`] : []) });
 
@@ -269,4 +279,40 @@ function describeWindow(r: PipelineResult): string {
   if (w?.mode === "fixed" && w.seconds) return `${w.seconds} s`;
   if (w?.mode === "events") return `${w.minSeconds}–${w.maxSeconds} s event-cut`;
   return "scenario";
+}
+
+/**
+ * Shares by recording and by every stated condition with at least two values: the categories with the
+ * largest shares, one column per group, and a caution naming the categories seen in one recording only.
+ */
+function breakdownSection(r: PipelineResult, stated: readonly (typeof CONDITION_FIELDS)[number][]): ReportSection {
+  const sc = r.scenarios.scenarios;
+  const tables: ReportSection["tables"] = [];
+  const bullets: string[] = [];
+  const groupings = ["recording" as const, ...stated.filter((f) => new Set(r.recordings.map((x) => x.conditions?.[f] ?? NOT_GIVEN)).size > 1)];
+  let kind = "type key";
+  for (const by of groupings) {
+    const b = breakdown(sc, r.recordings, by, r.weights, { typeKeys: r.typeKeys });
+    kind = b.categoryKind;
+    const share = new Map(b.rows.map((x) => [`${x.group}\u0000${x.category}`, x.share]));
+    const top = b.categories.slice(0, 15);
+    tables.push({
+      caption: `Share of ${r.options.weightBy} by ${by} (${b.categories.length} ${kind === "class" ? "classes" : "type keys"}; the ${top.length} largest overall)`,
+      columns: [kind, ...b.groups.map((g) => `${g.group} (${g.km.toFixed(1)} km)`), "recordings"],
+      rows: top.map((c) => [c.category, ...b.groups.map((g) => pct(share.get(`${g.group}\u0000${c.category}`) ?? 0, 1)), c.recordings.length]),
+    });
+    if (by === "recording") bullets.push(...b.warnings);
+  }
+  return {
+    id: "breakdown",
+    heading: "Shares by recording and condition",
+    paragraphs: [
+      `How the ${kind === "class" ? "classes" : "type keys"} divide each recording's ${r.options.weightBy}${groupings.length > 1 ? " and each stated condition's" : ""}. ` +
+        "A share that differs between recordings is a property of those recordings (site, day, traffic); a category seen in one recording only rests on that recording. " +
+        "roadsieve compare tests whether two groups differ (docs/catalogue-over-time.md).",
+    ],
+    bullets,
+    tone: bullets.length > 0 ? "caution" : "normal",
+    tables,
+  };
 }
