@@ -133,8 +133,21 @@ describe("diffPlans", () => {
     expect(d.testCases.kept).toHaveLength(1);
     expect(d.testCases.kept[0]!.change).toBeCloseTo(-0.1, 15);
     expect(d.testCases.sameScenario).toEqual([{ oldId: "t3", newId: "t5", scenarioId: "r/3/4" }]);
+    expect(d.testCases.reused).toEqual([]);
     expect(d.keptShareOfOld).toBeCloseTo(1 / 3, 15);
     expect(d.logicalScenarios).toBeNull();
+  });
+
+  it("does not count an id that now stands on another scenario as kept (rank ids)", () => {
+    const d = diffPlans(
+      { testCases: [{ id: "TC-0001", share: 0.6, scenarioId: "r/1/0" }, { id: "TC-0002", share: 0.4, scenarioId: "r/2/0" }] },
+      { testCases: [{ id: "TC-0001", share: 0.5, scenarioId: "q/9/2" }, { id: "TC-0002", share: 0.3, scenarioId: "r/2/0" }, { id: "TC-0003", share: 0.2, scenarioId: "r/1/0" }] },
+    );
+    expect(d.testCases.sameScenario).toEqual([{ oldId: "TC-0001", newId: "TC-0003", scenarioId: "r/1/0" }]);
+    expect(d.testCases.kept.map((k) => k.id)).toEqual(["TC-0002"]);
+    expect(d.testCases.reused).toEqual([{ id: "TC-0001", oldScenarioId: "r/1/0", newScenarioId: "q/9/2" }]);
+    expect(d.keptShareOfOld).toBe(0.5);
+    expect(d.warnings.join(" ")).toContain("ids by rank");
   });
 
   it("diffs logical scenarios and takes a test case's share from its logical scenario when it has none (plan schema 2)", () => {

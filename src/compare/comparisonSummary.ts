@@ -38,12 +38,14 @@ export function comparisonSummary(c: CatalogueComparison, maxRows = 15): string 
 export function planDiffSummary(d: PlanDiff): string {
   const lines: string[] = [];
   const t = d.testCases;
-  lines.push(`Test cases: ${t.kept.length} kept, ${t.added.length} added, ${t.dropped.length} dropped (${pct(d.keptShareOfOld)} of the old ids kept)`);
+  lines.push(`Test cases: ${t.kept.length} kept, ${t.added.length} added, ${t.dropped.length} dropped${t.reused.length ? `, ${t.reused.length} ids reused for another scenario` : ""} (${pct(d.keptShareOfOld)} of the old ones kept)`);
   const fmtKept = (k: PlanDiff["testCases"]["kept"][number]) =>
     `  = ${k.id}  ${k.oldShare === null ? "?" : pct(k.oldShare)} → ${k.newShare === null ? "?" : pct(k.newShare)}${k.change === null ? "" : ` (${pp(k.change)} pp)`}`;
   for (const k of t.kept) lines.push(fmtKept(k));
   for (const id of t.added) lines.push(`  + ${id}`);
   for (const id of t.dropped) lines.push(`  - ${id}`);
+  for (const r of t.reused) lines.push(`  ~ ${r.id}  ${r.oldScenarioId} → ${r.newScenarioId}`);
+  if (t.sameScenario.length > 0) lines.push(`Same recorded scenario under another id: ${t.sameScenario.map((x) => `${x.oldId} → ${x.newId}`).join(", ")}`);
   if (d.logicalScenarios) {
     const l = d.logicalScenarios;
     lines.push(`Logical scenarios: ${l.kept.length} kept, ${l.added.length} added, ${l.dropped.length} dropped`);

@@ -42,6 +42,11 @@ export interface PlanDiff {
   testCases: EntryDiff & {
     /** Dropped and added ids that stand on the same recorded scenario (an id that changed although its scenario stayed). */
     sameScenario: { oldId: string; newId: string; scenarioId: string }[];
+    /**
+     * Ids found in both plans but standing on different recorded scenarios (ids by rank, e.g.
+     * "TC-0001"): not kept, listed here instead (and counted neither as added nor as dropped).
+     */
+    reused: { id: string; oldScenarioId: string; newScenarioId: string }[];
   };
   /** Logical scenarios, when both plans have them. */
   logicalScenarios: EntryDiff | null;
@@ -89,17 +94,38 @@ export function diffPlans(oldPlan: DiffablePlan, newPlan: DiffablePlan): PlanDif
       ids.add(t.id);
     }
   }
-  const tc = entries(oldPlan.testCases, newPlan.testCases, (w, t) => tcShare(w === "old" ? oldPlan : newPlan, t));
-  const droppedByScenario = new Map<string, string>();
-  const oldById = new Map(oldPlan.testCases.map((t) => [t.id, t]));
-  for (const id of tc.dropped) {
-    const s = oldById.get(id)?.scenarioId;
-    if (s) droppedByScenario.set(s, id);
-  }
+  const tcAll = entries(oldPlan.testCases, newPlan.testCases, (w, t) => tcShare(w === "old" ? oldPlan : newPlan, t));
+  // An id in both plans that stands on another recorded scenario is not the same test case.
+  const oldScenario = new Map(oldPlan.testCases.map((t) => [t.id, t.scenarioId ?? null]));
+  const newScenario = new Map(newPlan.testCases.map((t) => [t.id, t.scenarioId ?? null]));
+  const reused: PlanDiff["testCases"]["reused"] = [];
+  const tc: EntryDiff = {
+    added: tcAll.added,
+    dropped: tcAll.dropped,
+    kept: tcAll.kept.filter((k) => {
+      const a = oldScenario.get(k.id) ?? null;
+      const b = newScenario.get(k.id) ?? null;
+      if (a !== null && b !== null && a !== b) {
+        reused.push({ id: k.id, oldScenarioId: a, newScenarioId: b });
+        return false;
+      }
+      return true;
+    }),
+  };
+  if (reused.length > 0)
+    warnings.push(`${reused.length} test case id(s) stand on a different recorded scenario in the new plan (ids by rank, not by content): they are listed as reused, not kept`);
+  // Old test cases that are not kept (dropped, or their id reused) whose recorded scenario is chosen
+  // again under another id.
+  const keptIds = new Set(tc.kept.map((k) => k.id));
+  const reusedIds = new Set(reused.map((r) => r.id));
+  const notKeptOld = new Map<string, string>();
+  for (const t of oldPlan.testCases) if (!keptIds.has(t.id) && t.scenarioId && (reusedIds.has(t.id) || tc.dropped.includes(t.id))) notKeptOld.set(t.scenarioId, t.id);
   const sameScenario: PlanDiff["testCases"]["sameScenario"] = [];
-  for (const t of newPlan.testCases)
-    if (tc.added.includes(t.id) && t.scenarioId && droppedByScenario.has(t.scenarioId))
-      sameScenario.push({ oldId: droppedByScenario.get(t.scenarioId)!, newId: t.id, scenarioId: t.scenarioId });
+  for (const t of newPlan.testCases) {
+    if (keptIds.has(t.id) || !t.scenarioId) continue;
+    const oldId = notKeptOld.get(t.scenarioId);
+    if (oldId !== undefined && oldId !== t.id) sameScenario.push({ oldId, newId: t.id, scenarioId: t.scenarioId });
+  }
   if (sameScenario.length > 0)
     warnings.push(`${sameScenario.length} test case(s) stand on the same recorded scenario under a new id (ids by rank, not by content?)`);
   let logical: EntryDiff | null = null;
@@ -109,7 +135,7 @@ export function diffPlans(oldPlan: DiffablePlan, newPlan: DiffablePlan): PlanDif
     logical = entries(oldPlan.logicalScenarios, newPlan.logicalScenarios, (w, l) => (w === "old" ? so : sn).get(l.id) ?? null);
   } else if (oldPlan.logicalScenarios || newPlan.logicalScenarios) warnings.push("only one plan has logical scenarios; they are not compared");
   return {
-    testCases: { ...tc, sameScenario },
+    testCases: { ...tc, sameScenario, reused },
     logicalScenarios: logical,
     totals: {
       old: { scenarios: oldPlan.totals?.scenarios ?? null, km: oldPlan.totals?.km ?? null },

@@ -12,7 +12,7 @@ export { wilsonInterval, newcombeDifference } from "./proportionDifference.js";
 export type { ProportionInterval } from "./proportionDifference.js";
 export { diffPlans } from "./diffPlans.js";
 export type { DiffablePlan, DiffableTestCase, DiffableLogicalScenario, PlanDiff, EntryDiff, KeptEntry } from "./diffPlans.js";
-export { readPlanFolder, readPlanJson } from "./readPlanFolder.js";
+export { readPlanFolder, readPlanJson, diffPlanFiles } from "./readPlanFolder.js";
 export type { PlanFolder } from "./readPlanFolder.js";
 export { comparisonSummary, planDiffSummary } from "./comparisonSummary.js";
 export { typeKeyParent, coarsenSparseCategories } from "./homogeneityTest.js";

@@ -6,6 +6,7 @@ import { conditionColumn } from "../catalogue/catalogueTables.js";
 import { queryCatalogue } from "../catalogue/queryCatalogue.js";
 import { CONDITION_FIELDS, type RecordingConditions } from "../recording/conditions.js";
 import { makingOfProvenance, type CatalogueSample } from "./catalogueSample.js";
+import { diffPlans, type DiffablePlan, type PlanDiff } from "./diffPlans.js";
 
 /** A plan folder read back: its plan.json (as plain JSON), its catalogue as a comparison side, its recordings. */
 export interface PlanFolder {
@@ -80,4 +81,11 @@ export async function readPlanFolder(dir: string, name = dir): Promise<PlanFolde
     making: makingOfProvenance({ tool: String(prov.tool), version: String(prov.version), options: prov.options ?? {}, upstream: prov.upstream ?? {} }),
   };
   return { dir, plan, sample, recordings };
+}
+
+/** Diff two plans given as folders or plan.json paths (what `roadsieve diff-plans` runs). */
+export async function diffPlanFiles(oldPath: string, newPath: string): Promise<PlanDiff> {
+  const a = (await readPlanJson(oldPath)) as unknown as DiffablePlan;
+  const b = (await readPlanJson(newPath)) as unknown as DiffablePlan;
+  return diffPlans(a, b);
 }

@@ -1,9 +1,8 @@
 import { resolve } from "node:path";
 import { parseArgs } from "node:util";
 import { writeFileAtomic } from "../../core/io.js";
-import { diffPlans, type DiffablePlan } from "../../compare/diffPlans.js";
 import { planDiffSummary } from "../../compare/comparisonSummary.js";
-import { readPlanJson } from "../../compare/readPlanFolder.js";
+import { diffPlanFiles } from "../../compare/readPlanFolder.js";
 import type { Command } from "../command.js";
 import { UsageError } from "../usageError.js";
 
@@ -24,9 +23,7 @@ export const diffPlansCommand: Command = {
   async run(argv) {
     const { values: v, positionals } = parseArgs({ args: argv, options: { out: { type: "string" } }, strict: true, allowPositionals: true });
     if (positionals.length !== 2) throw new UsageError("give two plans: roadsieve diff-plans OLD NEW");
-    const oldPlan = (await readPlanJson(resolve(positionals[0]!))) as unknown as DiffablePlan;
-    const newPlan = (await readPlanJson(resolve(positionals[1]!))) as unknown as DiffablePlan;
-    const d = diffPlans(oldPlan, newPlan);
+    const d = await diffPlanFiles(resolve(positionals[0]!), resolve(positionals[1]!));
     process.stdout.write(`${planDiffSummary(d)}\n`);
     if (v.out) {
       const path = resolve(v.out);
