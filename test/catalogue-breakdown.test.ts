@@ -1,4 +1,5 @@
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
@@ -14,6 +15,7 @@ import { readRoad } from "../src/recording/readRoad.js";
 import type { Scenario } from "../src/scenario/types.js";
 import { buildReport } from "../src/report/buildReport.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
+import { writeGeneratedTraffic } from "../src/synth/writeGeneratedTraffic.js";
 
 const dir = mkdtempSync(join(tmpdir(), "roadsieve-breakdown-"));
 
@@ -124,5 +126,25 @@ describe("breakdown", () => {
     const bd = rep.sections.find((x) => x.id === "breakdown")!;
     expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Share of km by site", "Share of km by trafficDensity"]);
     expect(bd.bullets![0]).toContain("rest on one recording only");
+  }, 60_000);
+});
+
+describe("conditions on the command line", () => {
+  it("check prints a recording's conditions; a value outside the vocabulary exits 2 with one line naming file, field and value", async () => {
+    const root = join(import.meta.dirname, "..");
+    const cli = (args: string[]) => spawnSync(process.execPath, ["--import", "tsx", join(root, "src/cli/main.ts"), ...args], { cwd: root, encoding: "utf8", timeout: 120_000 });
+    const d = join(dir, "cli-rec");
+    await writeGeneratedTraffic(d, generateTraffic({ vehicleKm: 3, recordingId: "cond" }, new Rng(8)), { format: "csv" });
+    const roadPath = join(d, "road.json");
+    const road = JSON.parse(readFileSync(roadPath, "utf8")) as Record<string, unknown>;
+    writeFileSync(roadPath, JSON.stringify({ ...road, conditions: { trafficDensity: "dense", weather: "rain" } }));
+    const ok = cli(["check", join(d, "tracks.csv")]);
+    expect(ok.status).toBe(0);
+    expect(ok.stdout).toContain("conditions: trafficDensity dense, weather rain");
+    writeFileSync(roadPath, JSON.stringify({ ...road, conditions: { trafficDensity: "busy" } }));
+    const bad = cli(["check", join(d, "tracks.csv")]);
+    expect(bad.status).toBe(2);
+    expect(bad.stderr.trim().split("\n")).toHaveLength(1);
+    expect(bad.stderr).toContain(`${roadPath}, column "conditions.trafficDensity", value "busy": condition "trafficDensity" should be one of free-flow, light, moderate, dense, congested`);
   }, 60_000);
 });
