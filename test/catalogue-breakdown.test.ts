@@ -79,6 +79,11 @@ describe("breakdown", () => {
     expect(clear[1]!.hours).toBeCloseTo(10 / 3600, 15);
     expect(clear[0]!.timeShare).toBeCloseTo(0.5, 15);
     expect(b.singleRecording).toEqual(["cut-in"]);
+    // Coverage per group: clear has following ×1 and cut-in ×1 → f1 = 2, f2 = 0, Good–Turing f1/n = 2/2;
+    // bias-corrected Chao1 (without the (n − 1)/n factor, the project's default) = S + f1(f1 − 1)/(2(f2 + 1))
+    // = 2 + 2 · 1 / 2 = 3 (Chao 1987 bias-corrected form).
+    const cov = b.groups.find((g) => g.group === "clear")!.coverage;
+    expect(cov).toEqual({ categories: 2, singletons: 2, doubletons: 0, unseenMass: 1, chao1: 3 });
     expect(b.warnings[0]).toContain("cut-in (1 scenario, only in a)");
     // Hours as weights: the clear group's following share is 10 s of 20 s.
     expect(breakdown(s, summaries, "weather", s.map((x) => x.seconds)).rows.find((r) => r.group === "clear" && r.category === "following")!.share).toBeCloseTo(0.5, 15);

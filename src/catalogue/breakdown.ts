@@ -1,5 +1,8 @@
 import { InputError } from "../core/errors.js";
 import { compensatedSum } from "../exposure/compensatedSum.js";
+import { frequencyCounts } from "../coverage/abundance.js";
+import { chao1 } from "../coverage/chao1.js";
+import { unseenMass } from "../coverage/unseenMass.js";
 import type { TypeKeyOptions } from "../coverage/typeKey.js";
 import type { RecordingSummary } from "../pipeline/runPipeline.js";
 import { CONDITION_FIELDS, NOT_GIVEN, type ConditionField } from "../recording/conditions.js";
@@ -17,6 +20,18 @@ export interface BreakdownGroup {
   hours: number;
   /** Sum of the weights of the group's scenarios. */
   weight: number;
+  /** Coverage of the group's own catalogue of categories (src/coverage, counting scenarios). */
+  coverage: {
+    /** Distinct categories seen in the group. */
+    categories: number;
+    /** Categories seen exactly once (f1) and twice (f2). */
+    singletons: number;
+    doubletons: number;
+    /** Good–Turing chance that the group's next scenario is of a category it has not shown yet, f1 / n. */
+    unseenMass: number;
+    /** Bias-corrected Chao1 estimate of the group's number of categories. */
+    chao1: number;
+  };
 }
 
 /** One cell: a category within a group. */
@@ -115,7 +130,10 @@ export function breakdown(
   const groupNames = [...groupAcc.keys()].sort(byName);
   const groups: BreakdownGroup[] = groupNames.map((g) => {
     const a = groupAcc.get(g)!;
-    return { group: g, recordings: [...a.recordings].sort(byName), scenarios: a.scenarios, km: compensatedSum(a.km), hours: compensatedSum(a.hours), weight: compensatedSum(a.w) };
+    const counts = [...cellAcc.get(g)!.values()].map((c) => c.scenarios);
+    const fc = frequencyCounts(counts);
+    const coverage = { categories: fc.sObs, singletons: fc.f1, doubletons: fc.f2, unseenMass: unseenMass(counts), chao1: chao1(counts).estimate };
+    return { group: g, recordings: [...a.recordings].sort(byName), scenarios: a.scenarios, km: compensatedSum(a.km), hours: compensatedSum(a.hours), weight: compensatedSum(a.w), coverage };
   });
   const rows: BreakdownRow[] = [];
   for (const g of groups) {
