@@ -129,7 +129,7 @@ describe("breakdown", () => {
     const recs = rep.sections.find((x) => x.id === "recordings")!;
     expect(recs.tables!.at(-1)!.columns).toEqual(["recording", "site", "trafficDensity", "recordingMethod"]);
     const bd = rep.sections.find((x) => x.id === "breakdown")!;
-    expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Share of km by site", "Share of km by trafficDensity"]);
+    expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Coverage of each recording's own type keys", "Share of km by site", "Share of km by trafficDensity"]);
     expect(bd.bullets![0]).toContain("rest on one recording only");
   }, 60_000);
 });

@@ -301,7 +301,14 @@ function breakdownSection(r: PipelineResult, stated: readonly (typeof CONDITION_
       columns: [kind, ...b.groups.map((g) => `${g.group} (${g.km.toFixed(1)} km)`), "recordings"],
       rows: top.map((c) => [c.category, ...b.groups.map((g) => pct(share.get(`${g.group}\u0000${c.category}`) ?? 0, 1)), c.recordings.length]),
     });
-    if (by === "recording") bullets.push(...b.warnings);
+    if (by === "recording") {
+      bullets.push(...b.warnings);
+      tables.push({
+        caption: `Coverage of each recording's own ${kind === "class" ? "classes" : "type keys"} (Good–Turing: chance its next scenario is of a kind it has not shown yet)`,
+        columns: ["recording", "scenarios", "kinds seen", "seen once", "seen twice", "unseen mass", "Chao1"],
+        rows: b.groups.map((g) => [g.group, g.scenarios, g.coverage.categories, g.coverage.singletons, g.coverage.doubletons, pct(g.coverage.unseenMass, 1), g.coverage.chao1.toFixed(1)]),
+      });
+    }
   }
   return {
     id: "breakdown",
