@@ -6,6 +6,8 @@ import { beforeAll, describe, expect, it } from "vitest";
 import { queryCatalogue } from "../src/catalogue/queryCatalogue.js";
 import { Rng } from "../src/core/rng.js";
 import { VERSION } from "../src/core/version.js";
+import { runPipeline } from "../src/pipeline/runPipeline.js";
+import { readRecording } from "../src/recording/readRecording.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 import { writeGeneratedTraffic } from "../src/synth/writeGeneratedTraffic.js";
 
@@ -35,7 +37,7 @@ describe("roadsieve command line", () => {
   it("--help lists the commands and exits 0", () => {
     const r = cli(["--help"]);
     expect(r.code).toBe(0);
-    for (const c of ["demo", "plan", "check", "generate"]) expect(r.stdout).toContain(`  ${c}`);
+    for (const c of ["demo", "plan", "assign", "check", "generate"]) expect(r.stdout).toContain(`  ${c}`);
     expect(cli(["plan", "--help"]).stdout).toContain("--budget N");
   });
 
@@ -81,7 +83,7 @@ describe("roadsieve command line", () => {
     expect(cli(["frobnicate"]).code).toBe(2);
   });
 
-  it("two runs with the same seed write byte-identical plan.json, plan.csv, report.html and Parquet tables", async () => {
+  it("two runs with the same seed write byte-identical plan.json, plan.csv, model.json, report.html and Parquet tables", async () => {
     const outs = [join(dir, "run1"), join(dir, "run2")];
     for (const out of outs) {
       const r = cli(["plan", tracks, "--out", out, "--seed", "9", "--parquet", "--quiet"]);
@@ -89,7 +91,7 @@ describe("roadsieve command line", () => {
       expect(r.stdout).toContain("test cases stand for");
     }
     const parquet = ["recordings", "scenarios", "features", "feature_info", "maneuvers", "test_cases"].map((t) => `catalogue/${t}.parquet`);
-    for (const f of ["plan.json", "plan.csv", "report.html", ...parquet]) {
+    for (const f of ["plan.json", "plan.csv", "model.json", "report.html", ...parquet]) {
       const a = readFileSync(join(outs[0]!, f));
       const b = readFileSync(join(outs[1]!, f));
       expect(a.equals(b), `${f} differs between runs`).toBe(true);
@@ -101,5 +103,65 @@ describe("roadsieve command line", () => {
     const plan = JSON.parse(readFileSync(join(outs[0]!, "plan.json"), "utf8")) as { testCases: { share: number }[] };
     expect(plan.testCases.length).toBeGreaterThan(0);
     for (const t of plan.testCases) expect(t.share).toBeGreaterThanOrEqual(0);
+  });
+});
+
+describe("roadsieve assign", () => {
+  let planDir = "";
+  let other = "";
+  beforeAll(async () => {
+    planDir = join(dir, "assign-plan");
+    const r = cli(["plan", tracks, "--out", planDir, "--seed", "9", "--map", "pca", "--no-catalogue", "--quiet"]);
+    expect(r.code, r.stderr).toBe(0);
+    // Another day on the same fictional motorway: denser traffic, another generator seed.
+    const traffic = generateTraffic({ vehicleKm: 10, recordingId: "cli-other", flowPerLane: 1400 }, new Rng(4));
+    await writeGeneratedTraffic(join(dir, "other"), traffic, { format: "csv" });
+    other = join(dir, "other", "tracks.csv");
+  });
+
+  it("puts the plan's own recording back into the plan's clusters, scenario by scenario", async () => {
+    const csv = join(dir, "assigned-self.csv");
+    const r = cli(["assign", planDir, tracks, "--out", csv, "--quiet"]);
+    expect(r.code, r.stderr).toBe(0);
+    // Reference: the labels of the fit itself (the same run in-process; k-means nearest centre and
+    // DBSCAN's border rule, Ester et al. 1996, reproduce them).
+    const fit = runPipeline([await readRecording(tracks)], { seed: 9, map: "pca" });
+    const rows = readFileSync(csv, "utf8").trim().split("\n").slice(1).map((l) => l.split(","));
+    expect(rows.length).toBe(fit.scenarios.scenarios.length);
+    const byId = new Map(rows.map((c) => [c[0]!, Number(c[6])]));
+    fit.scenarios.scenarios.forEach((s, i) => expect(byId.get(s.id), s.id).toBe(fit.labels[i]));
+    const noise = Array.from(fit.labels).filter((l) => l === -1).length;
+    expect(r.stdout).toContain(`${noise} novel scenario(s)`);
+  });
+
+  it("assigns a new recording: per-cluster counts add up to its scenarios, novel ones listed", () => {
+    const r = cli(["assign", planDir, other, "--list", "3", "--quiet"]);
+    expect(r.code, r.stderr).toBe(0);
+    const m = /assigned (\d+) scenarios/.exec(r.stdout);
+    expect(m).not.toBeNull();
+    const table = r.stdout.split("\n").filter((l) => /^(\d+|novel \(noise\))\s+\d+\s/.test(l));
+    const counts = table.map((l) => Number(l.replace(/^novel \(noise\)/, "x").trim().split(/\s+/)[1]));
+    expect(counts.reduce((a, b) => a + b, 0)).toBe(Number(m![1]));
+    expect(r.stdout).toMatch(/\d+ novel scenario\(s\)/);
+  });
+
+  it("a model that does not match the recordings exits 2 with one line naming the feature", () => {
+    const model = JSON.parse(readFileSync(join(planDir, "model.json"), "utf8")) as { features: string[] };
+    const renamed = model.features[0]!;
+    model.features[0] = "not.a.feature";
+    const bad = join(dir, "bad-model.json");
+    writeFileSync(bad, JSON.stringify(model));
+    const r = cli(["assign", bad, other, "--quiet"]);
+    expect(r.code).toBe(2);
+    const line = r.stderr.trim().split("\n").pop()!;
+    expect(line).toContain("does not match");
+    expect(line).toContain(`"${renamed}"`);
+    expect(line).toContain(bad);
+    const v2 = join(dir, "v99-model.json");
+    writeFileSync(v2, JSON.stringify({ ...model, formatVersion: 99 }));
+    const r2 = cli(["assign", v2, other, "--quiet"]);
+    expect(r2.code).toBe(2);
+    expect(r2.stderr).toContain(`column "formatVersion"`);
+    expect(cli(["assign", join(dir, "no-such-plan"), other, "--quiet"]).code).toBe(2);
   });
 });

@@ -1,8 +1,10 @@
 import { describe, expect, it } from "vitest";
+import { assignScenarios } from "../src/cluster/assignScenarios.js";
 import { Rng } from "../src/core/rng.js";
 import { compensatedSum } from "../src/exposure/compensatedSum.js";
 import { extractRecording } from "../src/pipeline/extractRecording.js";
 import { planCatalogue } from "../src/pipeline/planCatalogue.js";
+import { resolvePipelineOptions } from "../src/pipeline/options.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
 import { testPlanToJson } from "../src/plan/planJson.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
@@ -82,6 +84,23 @@ describe("runPipeline(recordings) on generated traffic", () => {
     expect(x.summary.scenarios).toBe(sc.length);
     const r = planCatalogue([x.set], [x.summary], [x.maneuvers], { seed: 5, map: "pca" });
     expect(testPlanToJson(r.plan)).toBe(testPlanToJson(result.plan));
+  });
+
+  it("carries a clustering model that puts the run's own scenarios back into their clusters exactly", () => {
+    // The run's labels are the reference (k-means nearest centre, DBSCAN border rule: Ester et al. 1996).
+    const a = assignScenarios(result.model, result.embedding);
+    expect(Array.from(a.labels)).toEqual(Array.from(result.labels));
+    expect(result.model.k).toBe(result.k);
+    expect(result.model.extraction?.scenario).toEqual(JSON.parse(JSON.stringify(result.scenarios.options)));
+  });
+
+  it("resolves options idempotently, so the stage functions may be given resolved options", () => {
+    // extractRecording, planCatalogue and planFromClustering resolve again what they are given.
+    const cases = [{}, { seed: 3, k: 4, dbscan: false as const }, { kRange: [3, 5] as [number, number], dbscan: { minPts: 6 }, weightBy: "hours" as const, plan: { budget: 7 } }];
+    for (const c of cases) {
+      const once = resolvePipelineOptions(c);
+      expect(resolvePipelineOptions(once)).toEqual(once);
+    }
   });
 
   it("rejects a k larger than the number of scenarios with a message quoting both", () => {

@@ -17,3 +17,17 @@ export { kmeansModel, dbscanModel, modelToJSON, modelFromJSON, NOVELTY_QUANTILE 
 export type { ClusterModel, KMeansModel, DbscanModel } from "./model.js";
 export { assign } from "./assign.js";
 export type { AssignResult } from "./assign.js";
+export { fitClustering, resolveClusteringOptions, CLUSTERING_DEFAULTS } from "./fitClustering.js";
+export type { ClusteringOptions, ResolvedClusteringOptions, FitClusteringOptions, FitClusteringResult, ClusteringDbscan } from "./fitClustering.js";
+export {
+  clusteringModelToJson,
+  clusteringModelFromJson,
+  saveClusteringModel,
+  loadClusteringModel,
+  CLUSTERING_MODEL_FORMAT,
+  CLUSTERING_MODEL_VERSION,
+  checkModelFeatures,
+} from "./clusteringModel.js";
+export type { ClusteringModel } from "./clusteringModel.js";
+export { assignScenarios } from "./assignScenarios.js";
+export type { AssignScenariosResult, EmbeddingFeatures } from "./assignScenarios.js";

@@ -47,7 +47,7 @@ export function extractRecording(
   options: PipelineOptions | ResolvedPipelineOptions = {},
   progress?: Progress,
 ): ExtractedRecording {
-  const o = resolvePipelineOptions(options as PipelineOptions);
+  const o = resolvePipelineOptions(options);
   const timings: Record<string, number> = {};
   const timed = <T>(name: string, f: () => T): T => {
     const t0 = performance.now();
@@ -68,7 +68,12 @@ export function extractRecording(
     seconds += s.seconds;
   }
   const recWarnings = [...rec.warnings];
-  for (const tm of m) for (const w of tm.warnings) recWarnings.push(`track ${tm.trackId}: ${w}`);
+  for (const tm of m)
+    for (const w of tm.warnings) {
+      // Maneuver warnings usually name their track already; do not name it twice.
+      const prefix = `track ${tm.trackId}: `;
+      recWarnings.push(w.startsWith(prefix) ? w : prefix + w);
+    }
   for (const w of set.warnings) recWarnings.push(w);
   const summary: RecordingSummary = {
     id: rec.id,

@@ -1,4 +1,5 @@
 import { InputError } from "../core/errors.js";
+import { CLUSTERING_DEFAULTS, resolveClusteringOptions, type ClusteringOptions, type ResolvedClusteringOptions } from "../cluster/fitClustering.js";
 import type { EmbedOptions } from "../embed/features.js";
 import type { ManeuverOptions } from "../maneuvers/options.js";
 import type { TestPlanOptions } from "../plan/options.js";
@@ -24,11 +25,11 @@ export interface PipelineOptions {
   /**
    * DBSCAN finds the rare scenarios: rows it calls noise leave their k-means cluster and become
    * candidates for rare test cases. It runs on the first principal components of the embedding
-   * (enough for `dbscanVariance` of the variance, at most `dbscanMaxComponents`), with minPts = 2·d
+   * (enough for `variance` of the variance, default 0.9, at most `maxComponents`, default 8), with minPts = 2·d
    * (Schubert et al. 2017) and eps from the knee of the k-distance curve unless given. false turns
    * it off (no noise; rare scenarios then come from type keys seen once and criticality only).
    */
-  dbscan?: false | { eps?: number; minPts?: number; variance?: number; maxComponents?: number };
+  dbscan?: ClusteringOptions["dbscan"];
   /** 2-D map for the report. Default "umap" (seeded, sampled beyond a few thousand scenarios). */
   map?: MapMethod;
   /** Scenario weights in clustering and shares: kilometres (default) or hours. */
@@ -45,7 +46,7 @@ export interface ResolvedPipelineOptions {
   k: number | null;
   kRange: [number, number];
   nInit: number;
-  dbscan: false | { eps: number | null; minPts: number | null; variance: number; maxComponents: number };
+  dbscan: ResolvedClusteringOptions["dbscan"];
   map: MapMethod;
   weightBy: "km" | "hours";
   plan: TestPlanOptions;
@@ -53,10 +54,11 @@ export interface ResolvedPipelineOptions {
 
 export const PIPELINE_DEFAULTS = {
   seed: 1,
-  kRange: [2, 12] as [number, number],
-  nInit: 4,
-  dbscanVariance: 0.9,
-  dbscanMaxComponents: 8,
+  // The clustering stage's own defaults: one table for the stage and the pipeline.
+  kRange: CLUSTERING_DEFAULTS.kRange,
+  nInit: CLUSTERING_DEFAULTS.nInit,
+  dbscanVariance: CLUSTERING_DEFAULTS.dbscanVariance,
+  dbscanMaxComponents: CLUSTERING_DEFAULTS.dbscanMaxComponents,
   map: "umap" as MapMethod,
   weightBy: "km" as const,
 };
@@ -69,26 +71,7 @@ function bad(name: string, value: unknown, expected: string): never {
 export function resolvePipelineOptions(o: PipelineOptions = {}): ResolvedPipelineOptions {
   const seed = o.seed ?? PIPELINE_DEFAULTS.seed;
   if (!(Number.isInteger(seed) && seed >= 0)) bad("seed", seed, "an integer >= 0");
-  const k = o.k ?? null;
-  if (k !== null && !(Number.isInteger(k) && k >= 1)) bad("k", k, "an integer >= 1");
-  const kRange = o.kRange ?? PIPELINE_DEFAULTS.kRange;
-  if (!(Array.isArray(kRange) && kRange.length === 2 && Number.isInteger(kRange[0]) && Number.isInteger(kRange[1]) && kRange[0] >= 2 && kRange[1] >= kRange[0]))
-    bad("kRange", kRange, "[kMin, kMax] with 2 <= kMin <= kMax");
-  const nInit = o.nInit ?? PIPELINE_DEFAULTS.nInit;
-  if (!(Number.isInteger(nInit) && nInit >= 1)) bad("nInit", nInit, "an integer >= 1");
-  let dbscan: ResolvedPipelineOptions["dbscan"] = false;
-  if (o.dbscan !== false) {
-    const d = o.dbscan ?? {};
-    const eps = d.eps ?? null;
-    if (eps !== null && !(eps > 0 && Number.isFinite(eps))) bad("dbscan.eps", eps, "a distance > 0");
-    const minPts = d.minPts ?? null;
-    if (minPts !== null && !(Number.isInteger(minPts) && minPts >= 2)) bad("dbscan.minPts", minPts, "an integer >= 2");
-    const variance = d.variance ?? PIPELINE_DEFAULTS.dbscanVariance;
-    if (!(variance > 0 && variance <= 1)) bad("dbscan.variance", variance, "a share in (0, 1]");
-    const maxComponents = d.maxComponents ?? PIPELINE_DEFAULTS.dbscanMaxComponents;
-    if (!(Number.isInteger(maxComponents) && maxComponents >= 1)) bad("dbscan.maxComponents", maxComponents, "an integer >= 1");
-    dbscan = { eps, minPts, variance, maxComponents };
-  }
+  const { k, kRange, nInit, dbscan } = resolveClusteringOptions(o);
   const map = o.map ?? PIPELINE_DEFAULTS.map;
   if (map !== "pca" && map !== "umap") bad("map", map, `"pca" or "umap"`);
   const weightBy = o.weightBy ?? PIPELINE_DEFAULTS.weightBy;
@@ -100,7 +83,7 @@ export function resolvePipelineOptions(o: PipelineOptions = {}): ResolvedPipelin
     scenario: o.scenario ?? {},
     embedding: o.embedding ?? {},
     k,
-    kRange: [kRange[0], kRange[1]],
+    kRange,
     nInit,
     dbscan,
     map,

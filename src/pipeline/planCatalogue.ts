@@ -1,16 +1,15 @@
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
-import { zeros, type Matrix } from "../core/matrix.js";
+import type { Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
 import { VERSION } from "../core/version.js";
-import { dbscan, type DbscanResult } from "../cluster/dbscan.js";
-import { kmeans, type KMeansResult } from "../cluster/kmeans.js";
-import { medoids as exactMedoids, type MedoidsResult } from "../cluster/medoids.js";
-import { suggestEps, type SuggestEpsResult } from "../cluster/suggestEps.js";
-import { sweepK, type SweepKResult } from "../cluster/sweepK.js";
+import type { ClusteringModel } from "../cluster/clusteringModel.js";
+import { fitClustering, type ClusteringDbscan, type FitClusteringResult } from "../cluster/fitClustering.js";
+import type { KMeansResult } from "../cluster/kmeans.js";
+import type { MedoidsResult } from "../cluster/medoids.js";
+import type { SweepKResult } from "../cluster/sweepK.js";
 import { embedScenarios, type Embedding } from "../embed/features.js";
 import { map2d } from "../embed/map2d.js";
-import { pca } from "../embed/pca.js";
 import { scenarioWeights } from "../exposure/sampleWeights.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
@@ -36,10 +35,12 @@ export interface PipelineResult {
   k: number;
   kmeans: KMeansResult;
   /** DBSCAN on the leading principal components, when it ran. */
-  dbscan: (DbscanResult & { components: number; explainedVariance: number; epsSuggestion: SuggestEpsResult | null }) | null;
+  dbscan: ClusteringDbscan | null;
   /** Final labels: the k-means cluster, or -1 where DBSCAN called the scenario noise (rare). */
   labels: Int32Array;
   medoids: MedoidsResult;
+  /** The fitted clustering stage (written as model.json beside the plan; see assignScenarios). */
+  model: ClusteringModel;
   typeKeys: string[];
   map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
   plan: TestPlan;
@@ -48,12 +49,27 @@ export interface PipelineResult {
   warnings: string[];
 }
 
+/** The merged, embedded catalogue with its clustering: the input of {@link planFromClustering}. */
+export interface ClusteredCatalogue {
+  /** The `extractRecording` summaries and maneuvers, one per recording, in the order of the merge. */
+  summaries: readonly RecordingSummary[];
+  maneuvers: readonly TrackManeuvers[][];
+  /** `mergeScenarioSets` of the recordings' sets, in the same order. */
+  scenarios: ScenarioSet;
+  /** `embedScenarios(scenarios, options.embedding)`. */
+  embedding: Embedding;
+  /** `scenarioWeights(scenarios.scenarios, options.weightBy)`. */
+  weights: Float64Array;
+  /** `fitClustering(embedding, { ...options, weights, seed: options.seed })`. */
+  clustering: FitClusteringResult;
+}
+
 /**
- * The half of the pipeline after extraction, for all recordings together: merge the scenario sets →
- * embedding → k-means (k by silhouette unless given) with DBSCAN noise as the rare scenarios → exact
- * medoids → type keys → 2-D map → test plan. `sets`, `summaries` and `maneuvers` are the
- * `extractRecording` results of each recording, in the same order (the order fixes scenario order,
- * hence the plan's bytes). Pure: no files are read or written here.
+ * The half of the pipeline after extraction, for all recordings together, as wiring of stage
+ * functions: `mergeScenarioSets` → `embedScenarios` → `scenarioWeights` → `fitClustering` →
+ * `planFromClustering`. `sets`, `summaries` and `maneuvers` are the `extractRecording` results of
+ * each recording, in the same order (the order fixes scenario order, hence the plan's bytes). A
+ * notebook calling these functions in this order gets the same plan. Pure: no files are touched.
  */
 export function planCatalogue(
   sets: readonly ScenarioSet[],
@@ -62,16 +78,7 @@ export function planCatalogue(
   options: PipelineOptions | ResolvedPipelineOptions = {},
   progress?: Progress,
 ): PipelineResult {
-  const o = resolvePipelineOptions(options as PipelineOptions);
-  const rng = new Rng(o.seed);
-  const timings: Record<string, number> = {};
-  const warnings: string[] = [];
-  const timed = <T>(name: string, f: () => T): T => {
-    const t0 = performance.now();
-    const r = f();
-    timings[name] = (timings[name] ?? 0) + (performance.now() - t0) / 1000;
-    return r;
-  };
+  const o = resolvePipelineOptions(options);
   if (sets.length === 0) throw new InputError("planning needs at least one recording's scenarios");
   if (sets.length !== summaries.length || sets.length !== maneuvers.length)
     throw new InputError(`planCatalogue got ${sets.length} scenario sets, ${summaries.length} summaries and ${maneuvers.length} maneuver lists; pass one of each per recording, in the same order`);
@@ -79,56 +86,54 @@ export function planCatalogue(
   const scenarios = mergeScenarioSets([...sets]);
   const n = scenarios.scenarios.length;
   if (n < 3) throw new InputError(`the recordings gave ${n} scenario(s); clustering needs at least 3`);
-
-  const embedding = timed("embedding", () => embedScenarios(scenarios, o.embedding));
-  const X = embedding.matrix;
+  const t0 = performance.now();
+  const embedding = embedScenarios(scenarios, o.embedding);
+  const tEmbed = (performance.now() - t0) / 1000;
   const weights = scenarioWeights(scenarios.scenarios, o.weightBy);
+  const clustering = fitClustering(embedding, { ...o, weights, seed: o.seed, progress });
+  const r = planFromClustering({ summaries, maneuvers, scenarios, embedding, weights, clustering }, o, progress);
+  r.timings = { embedding: tEmbed, ...r.timings };
+  return r;
+}
 
-  let sweep: SweepKResult | null = null;
-  let k = o.k ?? 0;
-  if (o.k === null) {
-    const kMax = Math.min(o.kRange[1], n - 1);
-    const kMin = Math.min(o.kRange[0], kMax);
-    sweep = timed("choose k", () => sweepK(X, { kMin, kMax, rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
-    k = sweep.suggestedK;
-    warnings.push(...sweep.warnings);
-  }
-  if (k > n) throw new InputError(`k=${k} should be <= the number of scenarios (${n})`);
-  const km = timed("k-means", () => kmeans(X, k, { rng: rng.fork("kmeans"), nInit: o.nInit, weights, progress }));
-  warnings.push(...km.warnings);
-
-  const labels = Int32Array.from(km.labels);
-  let db: PipelineResult["dbscan"] = null;
-  if (o.dbscan !== false) {
-    const cfg = o.dbscan;
-    db = timed("DBSCAN", () => {
-      const full = pca(X, Math.min(X.cols, X.rows));
-      let comps = 0;
-      let cum = 0;
-      while (comps < Math.min(cfg.maxComponents, full.explainedVarianceRatio.length) && cum < cfg.variance) cum += full.explainedVarianceRatio[comps++]!;
-      comps = Math.max(1, comps);
-      // The leading `comps` columns of the full decomposition's scores are the comps-component scores.
-      const scores = takeColumns(full.scores, comps);
-      const minPts = cfg.minPts ?? 2 * comps;
-      const sugg = cfg.eps === null ? suggestEps(scores, { minPts, rng: rng.fork("eps") }) : null;
-      const eps = cfg.eps ?? sugg!.eps;
-      const r = dbscan(scores, { eps, minPts, progress });
-      return { ...r, components: comps, explainedVariance: cum, epsSuggestion: sugg };
-    });
-    warnings.push(...db.warnings);
-    for (let i = 0; i < n; i++) if (db.labels[i] === -1) labels[i] = -1;
-  }
-  const med = timed("medoids", () => exactMedoids(X, labels, { progress }));
-  warnings.push(...med.warnings);
+/**
+ * The last step of the pipeline, once the catalogue is clustered: type keys → 2-D map → test plan,
+ * and the result of the whole run (the clustering model gets the extraction options it needs to
+ * treat new recordings alike). Pure.
+ */
+export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptions | ResolvedPipelineOptions = {}, progress?: Progress): PipelineResult {
+  const o = resolvePipelineOptions(options);
+  const { scenarios, embedding, weights, clustering: cl } = c;
+  const n = scenarios.scenarios.length;
+  if (embedding.matrix.rows !== n || cl.labels.length !== n || weights.length !== n)
+    throw new InputError(`planFromClustering: ${n} scenarios, ${embedding.matrix.rows} embedded rows, ${cl.labels.length} labels and ${weights.length} weights; all should be the same catalogue`);
+  const rng = new Rng(o.seed);
+  const X = embedding.matrix;
+  const timings: Record<string, number> = { ...cl.timings };
+  const warnings: string[] = [...cl.warnings];
+  const timed = <T>(name: string, f: () => T): T => {
+    const t0 = performance.now();
+    const r = f();
+    timings[name] = (timings[name] ?? 0) + (performance.now() - t0) / 1000;
+    return r;
+  };
+  const { k, sweep, dbscan: db, labels, medoids: med } = cl;
   const typeKeys = timed("type keys", () => scenarioTypeKeys(scenarios.scenarios, o.plan.typeKey));
   const map = timed("2-D map", () => map2d(X, { method: o.map, rng: rng.fork("map"), progress }));
 
   const inputChecksums: Record<string, string> = {};
-  for (const r of summaries) inputChecksums[r.source] = r.checksum;
+  for (const r of c.summaries) inputChecksums[r.source] = r.checksum;
   // Conditions go into the provenance only when some recording states them, so that plans of
   // recordings without conditions keep their bytes.
   const recordingConditions: Record<string, RecordingConditions> = {};
-  for (const r of summaries) if (r.conditions && Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
+  for (const r of c.summaries) if (r.conditions && Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
+  const extraction = {
+    maneuvers: o.maneuvers,
+    scene: o.scene,
+    scenario: scenarios.options ?? o.scenario,
+    embedding: o.embedding,
+    weightBy: o.weightBy,
+  };
   const plan = timed("test plan", () =>
     buildTestPlan(
       {
@@ -146,7 +151,7 @@ export function planCatalogue(
             tool: `roadsieve ${VERSION}`,
             maneuvers: o.maneuvers,
             scene: o.scene,
-            scenario: scenarios.options ?? o.scenario,
+            scenario: extraction.scenario,
             embedding: o.embedding,
             k,
             kRange: o.kRange,
@@ -165,17 +170,18 @@ export function planCatalogue(
   warnings.push(...plan.warnings);
   return {
     options: o,
-    recordings: [...summaries],
-    maneuvers: [...maneuvers],
+    recordings: [...c.summaries],
+    maneuvers: [...c.maneuvers],
     scenarios,
     embedding,
     weights,
     sweep,
     k,
-    kmeans: km,
+    kmeans: cl.kmeans,
     dbscan: db,
     labels,
     medoids: med,
+    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown> },
     typeKeys,
     map,
     plan,
@@ -193,11 +199,4 @@ export function checkDistinctIds(recordings: readonly { id: string; source: stri
       throw new InputError(`two recordings have the id "${rec.id}" (${other} and ${rec.source}); scenario ids would collide — give each its own id (readRecording option id)`);
     seen.set(rec.id, rec.source);
   }
-}
-
-/** The first `c` columns of a matrix, as a new matrix. */
-function takeColumns(m: Matrix, c: number): Matrix {
-  const out = zeros(m.rows, c);
-  for (let i = 0; i < m.rows; i++) out.data.set(m.data.subarray(i * m.cols, i * m.cols + c), i * c);
-  return out;
 }

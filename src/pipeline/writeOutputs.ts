@@ -4,6 +4,7 @@ import type { Progress } from "../core/progress.js";
 import { catalogueTables } from "../catalogue/catalogueTables.js";
 import { writeCatalogue } from "../catalogue/writeCatalogue.js";
 import { writeTestPlan } from "../plan/writeTestPlan.js";
+import { saveClusteringModel } from "../cluster/clusteringModel.js";
 import { buildReport } from "../report/buildReport.js";
 import { renderHtml } from "../report/html.js";
 import type { PipelineResult } from "./runPipeline.js";
@@ -25,11 +26,17 @@ export interface WriteOutputsOptions {
 }
 
 /**
- * Write a run's outputs into `dir`: plan.json, plan.csv, report.html and (by default) the catalogue
+ * Write a run's outputs into `dir`: plan.json, plan.csv, model.json (the fitted clustering), report.html and (by default) the catalogue
  * database (and OpenSCENARIO files on request). Returns the paths written and any warnings. Every file is written under a temporary name and renamed. Same result, same bytes.
  */
 export async function writeOutputs(r: PipelineResult, dir: string, options: WriteOutputsOptions = {}): Promise<{ files: string[]; warnings: string[] }> {
   const written = await writeTestPlan(r.plan, dir);
+  // The fitted clustering stage beside the plan, so that `roadsieve assign` (assignScenarios) can put
+  // the scenarios of new recordings into this plan's clusters. A later per-class model of the
+  // logical scenarios goes into the same file under its `logical` key (see ClusteringModel).
+  const modelPath = join(dir, "model.json");
+  await saveClusteringModel(r.model, modelPath);
+  written.push(modelPath);
   const warnings: string[] = [];
   options.progress?.({ stage: "report", done: 0, total: 1 });
   const html = renderHtml(buildReport(r, options.title));

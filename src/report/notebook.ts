@@ -12,6 +12,10 @@ interface HtmlDisplay {
   html(s: string): void;
 }
 
+/** What to do instead of show() outside a kernel: names functions of the public API (a test checks they exist). */
+export const OUTSIDE_JUPYTER =
+  "outside Jupyter, write the report file with writeOutputs(result, dir) (report.html beside plan.json), or get its HTML as a string with renderHtml(buildReport(result))";
+
 let display: HtmlDisplay | undefined;
 let plotlySent = false;
 let counter = 0;
@@ -22,7 +26,7 @@ function tslabDisplay(): HtmlDisplay {
   try {
     mod = createRequire(import.meta.url)("tslab") as { display?: HtmlDisplay };
   } catch (e) {
-    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); outside Jupyter, write a report with writeReport() instead`);
+    throw new Error(`the notebook display needs the tslab package (${(e as Error).message}); ${OUTSIDE_JUPYTER}`);
   }
   if (!mod.display) throw new Error("tslab.display is missing; is this the tslab kernel?");
   display = mod.display;
@@ -35,7 +39,7 @@ function emit(html: string): void {
   } catch (e) {
     const msg = (e as Error).message;
     if (/not ready/i.test(msg))
-      throw new Error("roadsieve's notebook display works only inside a running tslab Jupyter kernel; from scripts, write an HTML report instead (writeReport)");
+      throw new Error(`roadsieve's notebook display works only inside a running tslab Jupyter kernel; ${OUTSIDE_JUPYTER}`);
     throw e;
   }
 }

@@ -8,7 +8,7 @@ const HELP = `roadsieve demo [options]
 
 Run the whole job on the bundled sample recording of the fictional Orrowind Motorway
 (sample-data/orrowind, made by our traffic generator) and write plan.json, plan.csv,
-report.html and catalogue.duckdb into out/.
+model.json, report.html and catalogue.duckdb into out/.
 
 Options:
 ${PIPELINE_HELP}

@@ -137,6 +137,7 @@ detect every vehicle's maneuvers, cut every drive into scenarios, cluster them, 
 recorded medoid per cluster, keep rare and critical scenarios on their own, and write:
   DIR/plan.json        the test plan (schema: docs/plan.md)
   DIR/plan.csv         one row per test case
+  DIR/model.json       the fitted clustering, for roadsieve assign (new recordings into this plan)
   DIR/report.html      a self-contained report with charts (opens offline)
   DIR/catalogue.duckdb every scenario, feature, maneuver and test case, for SQL
 
