@@ -6,6 +6,7 @@
 import { InputError } from "../core/errors.js";
 import { VERSION } from "../core/version.js";
 import type { Command } from "./command.js";
+import { addCommand } from "./commands/add.js";
 import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
 import { compareCommand } from "./commands/compare.js";
@@ -15,7 +16,7 @@ import { generateCommand } from "./commands/generate.js";
 import { planCommand } from "./commands/plan.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, checkCommand, generateCommand, compareCommand, diffPlansCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, addCommand, checkCommand, generateCommand, compareCommand, diffPlansCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -16,3 +16,5 @@ export { readPlanFolder, readPlanJson, diffPlanFiles } from "./readPlanFolder.js
 export type { PlanFolder } from "./readPlanFolder.js";
 export { comparisonSummary, planDiffSummary } from "./comparisonSummary.js";
 export { typeKeyParent, coarsenSparseCategories } from "./homogeneityTest.js";
+export { addRecordings } from "./addRecordings.js";
+export type { AddResult, AddedCluster, CategoryCoverage } from "./addRecordings.js";

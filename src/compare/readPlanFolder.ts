@@ -14,6 +14,10 @@ export interface PlanFolder {
   plan: Record<string, unknown>;
   sample: CatalogueSample;
   recordings: { id: string; conditions: RecordingConditions }[];
+  /** Final cluster label of every scenario as the catalogue stores it (−1 = DBSCAN noise), sample order. */
+  clusters: number[];
+  /** Scenario ids, sample order. */
+  scenarioIds: string[];
 }
 
 /** plan.json of a folder (or the file itself), parsed; errors name the file. */
@@ -49,7 +53,7 @@ export async function readPlanFolder(dir: string, name = dir): Promise<PlanFolde
     (await queryCatalogue(db, "SELECT column_name FROM information_schema.columns WHERE table_name = 'scenarios'")).map((r) => String(r.column_name)),
   );
   const hasClass = cols.has("scenario_class");
-  const sc = await queryCatalogue(db, `SELECT recording, ego_track, km, seconds, type_key${hasClass ? ", scenario_class" : ""} FROM scenarios ORDER BY idx`);
+  const sc = await queryCatalogue(db, `SELECT id, recording, ego_track, km, seconds, type_key, "cluster"${hasClass ? ", scenario_class" : ""} FROM scenarios ORDER BY idx`);
   const info = await queryCatalogue(db, "SELECT column_name, feature, feature_group FROM feature_info ORDER BY rowid");
   const featureCols = info.map((r) => String(r.column_name));
   const feats = featureCols.length > 0 ? await queryCatalogue(db, `SELECT ${featureCols.map((c) => `"${c}"`).join(", ")} FROM features ORDER BY idx`) : [];
@@ -80,7 +84,7 @@ export async function readPlanFolder(dir: string, name = dir): Promise<PlanFolde
     featureGroups: info.map((r) => String(r.feature_group)),
     making: makingOfProvenance({ tool: String(prov.tool), version: String(prov.version), options: prov.options ?? {}, upstream: prov.upstream ?? {} }),
   };
-  return { dir, plan, sample, recordings };
+  return { dir, plan, sample, recordings, clusters: sc.map((r) => Number(r.cluster)), scenarioIds: sc.map((r) => String(r.id)) };
 }
 
 /** Diff two plans given as folders or plan.json paths (what `roadsieve diff-plans` runs). */
