@@ -93,6 +93,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
     displacement: [] as (number | null)[],
     peakLat: [] as (number | null)[],
     tCross: [] as (number | null)[],
+    fromLane: [] as (number | null)[],
+    toLane: [] as (number | null)[],
+    boundaryMethod: [] as (string | null)[],
     flags: [] as string[],
   };
   r.maneuvers.forEach((rec, ri) => {
@@ -113,6 +116,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
         m.displacement.push(s.laneChange ? s.laneChange.displacement : null);
         m.peakLat.push(s.laneChange ? s.laneChange.peakLateralSpeed : null);
         m.tCross.push(s.laneChange ? s.laneChange.tCross : null);
+        m.fromLane.push(s.laneChange ? s.laneChange.fromLane : null);
+        m.toLane.push(s.laneChange ? s.laneChange.toLane : null);
+        m.boundaryMethod.push(s.laneChange ? s.laneChange.boundaryMethod : null);
         m.flags.push(s.flags.join(" "));
       }
   });
@@ -133,6 +139,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "lateral_displacement", type: "DOUBLE", values: m.displacement },
       { name: "peak_lateral_speed", type: "DOUBLE", values: m.peakLat },
       { name: "t_cross", type: "DOUBLE", values: m.tCross },
+      { name: "from_lane", type: "INTEGER", values: m.fromLane },
+      { name: "to_lane", type: "INTEGER", values: m.toLane },
+      { name: "boundary_method", type: "VARCHAR", values: m.boundaryMethod },
       { name: "flags", type: "VARCHAR", values: m.flags },
     ],
   };

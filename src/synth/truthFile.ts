@@ -60,6 +60,7 @@ export function truthToJson(truth: GroundTruth): string {
     `  "laneChanges": ${block(truth.laneChanges)},\n` +
     `  "cutIns": ${block(truth.cutIns)},\n` +
     `  "planted": ${block(truth.planted)},\n` +
+    (truth.markingRiders ? `  "markingRiders": ${JSON.stringify(truth.markingRiders)},\n` : "") +
     `  "tracks": ${block(tracks)}\n` +
     "}\n"
   );
@@ -105,13 +106,19 @@ export function truthFromJson(text: string, file?: string): GroundTruth {
       throw new InputError((e as Error).message, { file, column: `tracks[${i}]` });
     }
   });
-  return {
+  const truth: GroundTruth = {
     tracks,
     laneChanges: o.laneChanges as TruthLaneChange[],
     cutIns: o.cutIns as TruthCutIn[],
     planted: o.planted as PlantedEvent[],
     definitions: o.definitions as Record<string, number>,
   };
+  if (o.markingRiders !== undefined) {
+    if (!Array.isArray(o.markingRiders) || !o.markingRiders.every((v) => Number.isInteger(v)))
+      throw new InputError(`field "markingRiders" should be an array of track ids`, { file, column: "markingRiders" });
+    truth.markingRiders = o.markingRiders as number[];
+  }
+  return truth;
 }
 
 /** Load a truth.json written by writeGeneratedTraffic. */
