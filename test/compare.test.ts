@@ -95,6 +95,8 @@ describe("compareCatalogues, plan folders, condition groups and the CLI", () => 
     expect(() => compareCatalogues(light, d8)).toThrow(/different scenario windows \(scenario\.window\.seconds 10 vs 8\)/);
     const older = { ...d8, making: { ...d8.making!, tool: "roadsieve 0.0.9", scenario: light.making!.scenario } };
     expect(() => compareCatalogues(light, older)).toThrow(/different tool versions \(roadsieve 0\.1\.0 vs roadsieve 0\.0\.9\)/);
+    const otherScene = { ...light, name: "other scene", making: { ...light.making!, scene: { ...(light.making!.scene as Record<string, unknown>), ttcThreshold: 2.5 } } };
+    expect(() => compareCatalogues(light, otherScene)).toThrow(/different scene options \(neighbours, criticality thresholds\) \(scene\.ttcThreshold .* vs 2\.5\)/);
     const fewer = { ...light, featureNames: light.featureNames.slice(1), features: { ...light.features!, cols: light.features!.cols - 1 } };
     expect(() => compareCatalogues(light, fewer)).toThrow(/different feature sets \(128 vs 127 features/);
   });

@@ -28,8 +28,9 @@ function leafDifferences(x: unknown, y: unknown, path: string, out: string[], li
 
 /**
  * What makes two catalogues incomparable, in words: a different tool version, scenario windows,
- * embedding options, type-key options (when categories are type keys), feature set, or one side
- * with classes and the other with type keys. Empty when they can be compared.
+ * embedding options, maneuver detection or scene options, type-key options (when categories are type
+ * keys), feature set, or one side with classes and the other with type keys. Empty when they can be
+ * compared.
  */
 export function catalogueDifferences(a: CatalogueSample, b: CatalogueSample): string[] {
   const out: string[] = [];
@@ -44,6 +45,14 @@ export function catalogueDifferences(a: CatalogueSample, b: CatalogueSample): st
     const e: string[] = [];
     leafDifferences(ma.embedding, mb.embedding, "embedding", e);
     if (e.length > 0) out.push(`different embedding options (${e.join(", ")})`);
+    for (const [key, what] of [
+      ["maneuvers", "maneuver detection options"],
+      ["scene", "scene options (neighbours, criticality thresholds)"],
+    ] as const) {
+      const m: string[] = [];
+      leafDifferences(ma[key], mb[key], key, m);
+      if (m.length > 0) out.push(`different ${what} (${m.join(", ")})`);
+    }
     if (a.categoryKind === "type key") {
       const t: string[] = [];
       leafDifferences(ma.typeKey, mb.typeKey, "typeKey", t);

@@ -14,6 +14,9 @@ export interface CatalogueMaking {
   embedding: unknown;
   /** Type-key options (what a category is when classes are not measured). */
   typeKey: unknown;
+  /** Maneuver detection and scene (neighbour, criticality) options: they shape every category. */
+  maneuvers?: unknown;
+  scene?: unknown;
 }
 
 /**
@@ -44,7 +47,14 @@ export function makingOfResult(r: PipelineResult): CatalogueMaking {
 
 /** How a plan's catalogue was made, from its provenance (plan.json). */
 export function makingOfProvenance(p: { tool: string; version: string; options: Record<string, unknown>; upstream: Record<string, unknown> }): CatalogueMaking {
-  return { tool: `${p.tool} ${p.version}`, scenario: p.upstream.scenario ?? null, embedding: p.upstream.embedding ?? null, typeKey: p.options.typeKey ?? null };
+  return {
+    tool: `${p.tool} ${p.version}`,
+    scenario: p.upstream.scenario ?? null,
+    embedding: p.upstream.embedding ?? null,
+    typeKey: p.options.typeKey ?? null,
+    maneuvers: p.upstream.maneuvers ?? null,
+    scene: p.upstream.scene ?? null,
+  };
 }
 
 /**
