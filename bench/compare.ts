@@ -1,7 +1,7 @@
 /**
  * Size and power of the catalogue comparison on generated recordings.
  *
- *   npm run bench -- compare [--pairs 20] [--vkm 30] [--flow 800] [--flow-b 1600] [--permutations 199]
+ *   npm run bench -- compare [--pairs 20] [--vkm 30] [--flow 800] [--flow-b 1600] [--permutations 199] [--categories class|type-key]
  *
  * For each of --pairs seeded pairs: two recordings with the same generator settings and different
  * seeds (the null), and two with a planted change (flow per lane --flow vs --flow-b, the rest the
@@ -23,12 +23,13 @@ export async function run(args: string[]): Promise<void> {
   const flow = Number(arg(args, "--flow") ?? 800);
   const flowB = Number(arg(args, "--flow-b") ?? 1600);
   const permutations = Number(arg(args, "--permutations") ?? 199);
+  const categories = arg(args, "--categories") === "type-key" ? "type key" : "class";
   const t0 = performance.now();
   const study = (label: string, fb: number) => {
     const rejected = { chiSquare: 0, gTest: 0, drivePermutation: 0, energy: 0 };
     for (let k = 0; k < pairs; k++) {
-      const a = generatedSample({ vehicleKm: vkm, flowPerLane: flow }, 1000 + 2 * k, "a");
-      const b = generatedSample({ vehicleKm: vkm, flowPerLane: fb }, 1001 + 2 * k, "b");
+      const a = generatedSample({ vehicleKm: vkm, flowPerLane: flow }, 1000 + 2 * k, "a", categories);
+      const b = generatedSample({ vehicleKm: vkm, flowPerLane: fb }, 1001 + 2 * k, "b", categories);
       const c = compareCatalogues(a, b, { permutations, bootstrap: 99, seed: k });
       const f = c.frequency;
       if (f.chiSquare.p < 0.05) rejected.chiSquare++;
@@ -45,5 +46,5 @@ export async function run(args: string[]): Promise<void> {
   const changed = study(`flow ${flow} vs ${flowB}`, flowB);
   const seconds = (performance.now() - t0) / 1000;
   console.log(`rejections at 5 % of ${pairs} pairs, same settings: ${JSON.stringify(same)}; planted change: ${JSON.stringify(changed)}; ${seconds.toFixed(0)} s`);
-  console.log(JSON.stringify({ pairs, vkm, flow, flowB, permutations, same, changed, seconds }));
+  console.log(JSON.stringify({ pairs, vkm, flow, flowB, permutations, categories, same, changed, seconds }));
 }

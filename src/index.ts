@@ -22,4 +22,5 @@ export * from "./plan/index.js";
 export * from "./pipeline/index.js";
 export * from "./catalogue/index.js";
 export * from "./report/index.js";
+export * from "./logical/index.js";
 export * from "./compare/index.js";

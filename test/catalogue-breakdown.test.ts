@@ -101,10 +101,12 @@ describe("breakdown", () => {
     const db = join(dir, "c.duckdb");
     await writeCatalogue(db, catalogueTables(r));
     const b = breakdown(r.scenarios.scenarios, r.recordings, "trafficDensity", r.weights, { typeKeys: r.typeKeys });
+    // Extraction measures the scenario class (src/logical), so the categories are classes.
+    expect(b.categoryKind).toBe("class");
     // Reference: DuckDB's own aggregation of the catalogue tables.
     const sql = await queryCatalogue(
       db,
-      `SELECT r.traffic_density AS g, s.type_key AS c, count(*) AS n, sum(s.km) AS km, sum(s.seconds) / 3600 AS h,
+      `SELECT r.traffic_density AS g, s.scenario_class AS c, count(*) AS n, sum(s.km) AS km, sum(s.seconds) / 3600 AS h,
               sum(s.km) / sum(sum(s.km)) OVER (PARTITION BY r.traffic_density) AS share
        FROM scenarios s JOIN recordings r ON s.recording = r.id GROUP BY 1, 2 ORDER BY 1, 2`,
     );
@@ -117,8 +119,15 @@ describe("breakdown", () => {
       expect(row.hours).toBeCloseTo(q.h as number, 10);
       expect(row.share).toBeCloseTo(q.share as number, 10);
     });
-    const single = await queryCatalogue(db, "SELECT type_key FROM scenarios GROUP BY 1 HAVING count(DISTINCT recording) = 1 ORDER BY 1");
-    expect([...b.singleRecording].sort()).toEqual(single.map((x) => x.type_key));
+    const single = await queryCatalogue(db, "SELECT scenario_class FROM scenarios GROUP BY 1 HAVING count(DISTINCT recording) = 1 ORDER BY 1");
+    expect([...b.singleRecording].sort()).toEqual(single.map((x) => x.scenario_class));
+    // Given type keys instead of classes (scenarios without scenarioClass), the same agreement on type_key.
+    const plain = r.scenarios.scenarios.map((x) => ({ ...x, scenarioClass: undefined }));
+    const bt = breakdown(plain, r.recordings, "trafficDensity", r.weights, { typeKeys: r.typeKeys });
+    expect(bt.categoryKind).toBe("type key");
+    const sqlT = await queryCatalogue(db, "SELECT r.traffic_density AS g, s.type_key AS c, count(*) AS n FROM scenarios s JOIN recordings r ON s.recording = r.id GROUP BY 1, 2 ORDER BY 1, 2");
+    const oursT = [...bt.rows].sort((x, y) => (x.group + "\u0000" + x.category < y.group + "\u0000" + y.category ? -1 : 1));
+    expect(oursT.map((x) => [x.group, x.category, x.scenarios])).toEqual(sqlT.map((q) => [q.g, q.c, q.n]));
     // The catalogue's recordings table carries the conditions.
     expect(await queryCatalogue(db, "SELECT id, site, traffic_density, weather FROM recordings ORDER BY id")).toEqual([
       { id: "dense", site: "Orrowind km 9", traffic_density: "dense", weather: null },
@@ -129,7 +138,7 @@ describe("breakdown", () => {
     const recs = rep.sections.find((x) => x.id === "recordings")!;
     expect(recs.tables!.at(-1)!.columns).toEqual(["recording", "site", "trafficDensity", "recordingMethod"]);
     const bd = rep.sections.find((x) => x.id === "breakdown")!;
-    expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Coverage of each recording's own type keys", "Share of km by site", "Share of km by trafficDensity"]);
+    expect(bd.tables!.map((t) => t.caption!.split(" (")[0])).toEqual(["Share of km by recording", "Coverage of each recording's own classes", "Share of km by site", "Share of km by trafficDensity"]);
     expect(bd.bullets![0]).toContain("rest on one recording only");
   }, 60_000);
 });

@@ -21,8 +21,8 @@ function cli(args: string[]): { code: number | null; stdout: string; stderr: str
 }
 
 describe("the frequency and energy tests on generated recordings (ground truth: the generator's settings)", () => {
-  // A small version of bench/compare.ts: its first 6 seeded pairs of 30 vehicle-km recordings, with
-  // the same options, so that each outcome here is one row of the bench log. Bench (20 pairs,
+  // A small version of bench/compare.ts --categories type-key: its first 6 seeded pairs of 30
+  // vehicle-km recordings, with the same options, so that each outcome here is one row of the bench log. Bench (20 pairs,
   // docs/catalogue-over-time.md): a planted change of flow (800 → 1600 veh/h per lane) was rejected by
   // the drive-permutation chi-square in 18 of 20 pairs and by the energy test in 20 of 20; with the
   // same settings the drive-permutation test rejected in 4 of 20 (recordings differ beyond their
@@ -32,8 +32,8 @@ describe("the frequency and energy tests on generated recordings (ground truth: 
   const pairs = 6;
   const run = (flowB: number) =>
     Array.from({ length: pairs }, (_, k) => {
-      const a = generatedSample({ vehicleKm: 30, flowPerLane: 800 }, 1000 + 2 * k, "a");
-      const b = generatedSample({ vehicleKm: 30, flowPerLane: flowB }, 1001 + 2 * k, "b");
+      const a = generatedSample({ vehicleKm: 30, flowPerLane: 800 }, 1000 + 2 * k, "a", "type key");
+      const b = generatedSample({ vehicleKm: 30, flowPerLane: flowB }, 1001 + 2 * k, "b", "type key");
       return compareCatalogues(a, b, { permutations: 199, bootstrap: 99, seed: k });
     });
   it("rejects a planted change of flow", () => {

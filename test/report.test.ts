@@ -27,7 +27,7 @@ describe("renderHtml(buildReport(result))", () => {
     expect(titles.some((t) => t.startsWith("What each test case stands for"))).toBe(true);
     const map = figs.find((f) => f.figure.layout.title.text.startsWith("Scenario map"))!;
     const diamonds = map.figure.data.find((d) => d.name?.startsWith("test cases"))!;
-    expect(diamonds.x!.length).toBe(result.plan.testCases.length);
+    expect(diamonds.x!.length).toBe(result.plan.exploration.testCases.length); // the map marks the exploration view's test cases
     for (const f of figs) expect(html).toContain(`<div id="${f.id}" class="plot">`);
   });
 

@@ -23,7 +23,8 @@ const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : nul
 export function catalogueTables(r: PipelineResult): Table[] {
   const sc = r.scenarios.scenarios;
   const tcOf = new Array<string | null>(sc.length).fill(null);
-  for (const t of r.plan.testCases) tcOf[t.scenarioIndex] = t.id;
+  for (const t of r.plan.exploration.testCases) tcOf[t.scenarioIndex] = t.id;
+
   const scenarios: Table = {
     name: "scenarios",
     columns: [
@@ -50,6 +51,9 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "flags", type: "VARCHAR", values: sc.map((s) => s.criticality.flags.join(" ")) },
       { name: "type_key", type: "VARCHAR", values: r.typeKeys },
       { name: "cluster", type: "INTEGER", values: r.labels },
+      { name: "scenario_class", type: "VARCHAR", values: sc.map((s) => s.scenarioClass ?? null) },
+      { name: "logical_scenario", type: "VARCHAR", values: r.logicalScenarioOf },
+      { name: "parameters", type: "VARCHAR", values: sc.map((s) => (s.parameters ? JSON.stringify(s.parameters) : null)) },
       { name: "kmeans_cluster", type: "INTEGER", values: r.kmeans.labels },
       { name: "dbscan_label", type: "INTEGER", values: r.dbscan ? r.dbscan.labels : sc.map(() => null) },
       { name: "map_x", type: "DOUBLE", values: sc.map((_, i) => r.map.coords.data[2 * i]!) },
@@ -145,7 +149,7 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "flags", type: "VARCHAR", values: m.flags },
     ],
   };
-  const tc = r.plan.testCases;
+  const tc = r.plan.exploration.testCases;
   const testCases: Table = {
     name: "test_cases",
     columns: [
@@ -187,5 +191,33 @@ export function catalogueTables(r: PipelineResult): Table[] {
       ...CONDITION_FIELDS.map((f) => ({ name: conditionColumn(f), type: "VARCHAR" as const, values: r.recordings.map((x) => x.conditions?.[f] ?? null) })),
     ],
   };
-  return [recordings, scenarios, features, featureInfo, maneuvers, testCases];
+  const ls = r.plan.logicalScenarios;
+  const logical: Table = {
+    name: "logical_scenarios",
+    columns: [
+      { name: "id", type: "VARCHAR", values: ls.map((l) => l.id) },
+      { name: "class", type: "VARCHAR", values: ls.map((l) => l.classId) },
+      { name: "name", type: "VARCHAR", values: ls.map((l) => l.name) },
+      { name: "scenarios", type: "INTEGER", values: ls.map((l) => l.scenarios) },
+      { name: "share", type: "DOUBLE", values: ls.map((l) => l.share) },
+      { name: "km", type: "DOUBLE", values: ls.map((l) => l.km) },
+      { name: "rate_per_1000km", type: "DOUBLE", values: ls.map((l) => l.ratePer1000km.rate) },
+      { name: "representative", type: "VARCHAR", values: ls.map((l) => l.representative.scenarioId) },
+      { name: "critical_anchors", type: "INTEGER", values: ls.map((l) => l.criticalAnchors.length) },
+      { name: "test_cases", type: "INTEGER", values: ls.map((l) => l.testCases) },
+    ],
+  };
+  const ct = r.plan.testCases;
+  const concrete: Table = {
+    name: "concrete_test_cases",
+    columns: [
+      { name: "id", type: "VARCHAR", values: ct.map((t) => t.id) },
+      { name: "logical_scenario", type: "VARCHAR", values: ct.map((t) => t.logicalScenario) },
+      { name: "kind", type: "VARCHAR", values: ct.map((t) => t.kind) },
+      { name: "scenario_id", type: "VARCHAR", values: ct.map((t) => t.scenarioId) },
+      { name: "weight", type: "DOUBLE", values: ct.map((t) => t.weight) },
+      { name: "parameter_values", type: "VARCHAR", values: ct.map((t) => JSON.stringify(t.values)) },
+    ],
+  };
+  return [recordings, scenarios, features, featureInfo, maneuvers, testCases, logical, concrete];
 }

@@ -6,6 +6,7 @@ import type { Recording } from "../recording/types.js";
 import { buildScenarios } from "../scenario/buildScenarios.js";
 import type { ScenarioSet } from "../scenario/types.js";
 import { buildScenes } from "../scene/buildScenes.js";
+import { measureScenarioParameters } from "../logical/measureScenarioParameters.js";
 import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from "./options.js";
 
 /** What a recording contributed, for reports and provenance. */
@@ -59,6 +60,8 @@ export function extractRecording(
   const m = timed("maneuvers", () => detectAllManeuvers(rec, o.maneuvers, progress));
   const scenes = timed("neighbours", () => buildScenes(rec, m, o.scene, progress));
   const set = timed("scenarios", () => buildScenarios(rec, m, scenes, o.scenario, progress));
+  // Class and parameters of every scenario, while the tracks, maneuvers and scenes are at hand.
+  timed("parameters", () => measureScenarioParameters(rec, m, scenes, set, o.measure));
   let rows = 0;
   for (const t of rec.tracks) rows += t.t.length;
   let km = 0;

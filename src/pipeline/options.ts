@@ -3,6 +3,8 @@ import { CLUSTERING_DEFAULTS, resolveClusteringOptions, type ClusteringOptions, 
 import type { EmbedOptions } from "../embed/features.js";
 import type { ManeuverOptions } from "../maneuvers/options.js";
 import type { TestPlanOptions } from "../plan/options.js";
+import type { LogicalPlanOptions } from "../plan/buildPlan.js";
+import type { MeasureOptions } from "../logical/options.js";
 import type { ScenarioOptions } from "../scenario/options.js";
 import type { SceneOptions } from "../scene/options.js";
 
@@ -34,7 +36,12 @@ export interface PipelineOptions {
   map?: MapMethod;
   /** Scenario weights in clustering and shares: kilometres (default) or hours. */
   weightBy?: "km" | "hours";
+  /** plan.budget counts concrete test cases (the logical plan); the other plan options shape the thresholds and the exploration view. */
   plan?: TestPlanOptions;
+  /** Classification and parameter measurement (src/logical/). */
+  measure?: MeasureOptions;
+  /** Logical scenarios, critical events and the allocation of concrete test cases. */
+  logical?: LogicalPlanOptions;
 }
 
 export interface ResolvedPipelineOptions {
@@ -50,6 +57,8 @@ export interface ResolvedPipelineOptions {
   map: MapMethod;
   weightBy: "km" | "hours";
   plan: TestPlanOptions;
+  measure: MeasureOptions;
+  logical: LogicalPlanOptions;
 }
 
 export const PIPELINE_DEFAULTS = {
@@ -89,5 +98,7 @@ export function resolvePipelineOptions(o: PipelineOptions = {}): ResolvedPipelin
     map,
     weightBy,
     plan: { weightBy, ...(o.plan ?? {}) },
+    measure: o.measure ?? {},
+    logical: o.logical ?? {},
   };
 }

@@ -13,7 +13,10 @@ import { map2d } from "../embed/map2d.js";
 import { scenarioWeights } from "../exposure/sampleWeights.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
-import type { TestPlan } from "../plan/types.js";
+import { buildPlanDetailed } from "../plan/buildPlan.js";
+import type { Plan } from "../plan/logicalTypes.js";
+import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
+import { logicalModelToJSON } from "../logical/assignLogicalScenarios.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
 import type { ScenarioSet } from "../scenario/types.js";
 import type { RecordingConditions } from "../recording/conditions.js";
@@ -43,7 +46,11 @@ export interface PipelineResult {
   model: ClusteringModel;
   typeKeys: string[];
   map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
-  plan: TestPlan;
+  /** The plan of logical scenarios (schema 2.0.0); plan.exploration holds the global cluster view. */
+  plan: Plan;
+  /** Logical scenario id per scenario, and the fitted per-class model (standardization, representatives). */
+  logicalScenarioOf: string[];
+  logicalModel: LogicalModel;
   /** Seconds per stage. */
   timings: Record<string, number>;
   warnings: string[];
@@ -134,7 +141,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     embedding: o.embedding,
     weightBy: o.weightBy,
   };
-  const plan = timed("test plan", () =>
+  const exploration = timed("test plan", () =>
     buildTestPlan(
       {
         scenarios: scenarios.scenarios,
@@ -164,9 +171,14 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
         },
         progress,
       },
-      o.plan,
+      { ...o.plan, budget: undefined },
     ),
   );
+  // plan.budget counts concrete test cases; the exploration view keeps every cluster's medoid.
+  const detailed = timed("logical scenarios", () =>
+    buildPlanDetailed({ scenarios: scenarios.scenarios, exploration, rng: rng.fork("plan") }, o.plan, { ...o.logical, budget: o.logical.budget ?? o.plan.budget }),
+  );
+  const plan = detailed.plan;
   warnings.push(...plan.warnings);
   return {
     options: o,
@@ -181,10 +193,13 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     dbscan: db,
     labels,
     medoids: med,
-    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown> },
+    // The per-class model of the logical scenarios rides in model.json under its `logical` key.
+    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown>, logical: JSON.parse(logicalModelToJSON(detailed.model)) as unknown },
     typeKeys,
     map,
     plan,
+    logicalScenarioOf: detailed.logicalScenarioOf,
+    logicalModel: detailed.model,
     timings,
     warnings,
   };

@@ -3,7 +3,7 @@ import { writeFileAtomic } from "../core/io.js";
 import type { Progress } from "../core/progress.js";
 import { catalogueTables } from "../catalogue/catalogueTables.js";
 import { writeCatalogue } from "../catalogue/writeCatalogue.js";
-import { writeTestPlan } from "../plan/writeTestPlan.js";
+import { writePlan } from "../plan/writePlan.js";
 import { saveClusteringModel } from "../cluster/clusteringModel.js";
 import { buildReport } from "../report/buildReport.js";
 import { renderHtml } from "../report/html.js";
@@ -30,10 +30,10 @@ export interface WriteOutputsOptions {
  * database (and OpenSCENARIO files on request). Returns the paths written and any warnings. Every file is written under a temporary name and renamed. Same result, same bytes.
  */
 export async function writeOutputs(r: PipelineResult, dir: string, options: WriteOutputsOptions = {}): Promise<{ files: string[]; warnings: string[] }> {
-  const written = await writeTestPlan(r.plan, dir);
+  const written = await writePlan(r.plan, dir);
   // The fitted clustering stage beside the plan, so that `roadsieve assign` (assignScenarios) can put
-  // the scenarios of new recordings into this plan's clusters. A later per-class model of the
-  // logical scenarios goes into the same file under its `logical` key (see ClusteringModel).
+  // the scenarios of new recordings into this plan's clusters. The per-class model of the logical
+  // scenarios is in the same file under its `logical` key (logicalModelFromJSON reads it).
   const modelPath = join(dir, "model.json");
   await saveClusteringModel(r.model, modelPath);
   written.push(modelPath);
@@ -46,7 +46,7 @@ export async function writeOutputs(r: PipelineResult, dir: string, options: Writ
   options.progress?.({ stage: "report", done: 1, total: 1 });
   if (options.openScenario) {
     const byId = new Map(options.openScenario.map((rec) => [rec.id, rec.tracks]));
-    const osc = await writeOpenScenarioFiles(r.plan, r.scenarios.scenarios, (id) => {
+    const osc = await writeOpenScenarioFiles(r.plan.exploration, r.scenarios.scenarios, (id) => {
       const tracks = byId.get(id);
       if (!tracks) throw new RangeError(`recording "${id}" was not passed to writeOutputs; pass the recordings the pipeline ran on`);
       return tracks;

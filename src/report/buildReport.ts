@@ -13,6 +13,7 @@ import { criticalReasons } from "../plan/criticality.js";
 import { resolveTestPlanOptions } from "../plan/options.js";
 import { breakdown } from "../catalogue/breakdown.js";
 import { CONDITION_FIELDS, NOT_GIVEN } from "../recording/conditions.js";
+import { logicalSections } from "./logicalSection.js";
 
 const pct = (x: number, digits = 2): string => `${(100 * x).toFixed(digits)} %`;
 const fix = (x: number | null, digits = 2): string => (x === null || !Number.isFinite(x) ? "–" : x.toFixed(digits));
@@ -27,7 +28,8 @@ export const REPORT_CAUTIONS = [
 
 /** Turn a pipeline result into the report document (data only; renderHtml makes the page). */
 export function buildReport(r: PipelineResult, title = "roadsieve test plan"): ReportDocument {
-  const plan = r.plan;
+  // The sections below describe the global cluster view (plan.exploration); logicalSection the plan of logical scenarios.
+  const plan = r.plan.exploration;
   const sc = r.scenarios.scenarios;
   const n = sc.length;
   const hover = sc.map((s, i) => `${s.id}<br>cluster ${r.labels[i]}<br>${r.typeKeys[i]}<br>${(s.km * 1000).toFixed(0)} m, ${s.seconds.toFixed(1)} s`);
@@ -40,9 +42,10 @@ export function buildReport(r: PipelineResult, title = "roadsieve test plan"): R
   sections.push({
     id: "summary",
     heading: "Summary",
-    paragraphs: plan.summary.split(/\n+/).filter((p) => p.trim() !== ""),
+    paragraphs: r.plan.summary.split(/\n+/).filter((p) => p.trim() !== ""),
   });
   sections.push({ id: "cautions", heading: "Cautions", tone: "caution", bullets: plan.cautions.length > 0 ? plan.cautions : REPORT_CAUTIONS });
+  sections.push(...logicalSections(r.plan));
 
   sections.push({
     id: "map",

@@ -4,10 +4,10 @@ import type { Progress } from "../../core/progress.js";
 import type { PipelineOptions } from "../../pipeline/options.js";
 import { runPipeline } from "../../pipeline/runPipeline.js";
 import { writeOutputs } from "../../pipeline/writeOutputs.js";
-import { planSummary } from "../../plan/planSummary.js";
 import { readRecording, type ReadRecordingOptions } from "../../recording/readRecording.js";
 import type { Recording } from "../../recording/types.js";
 import type { Command } from "../command.js";
+import { SCENARIO_CLASS_IDS, isScenarioClassId } from "../../logical/classes.js";
 import { progressDisplay } from "../progressDisplay.js";
 import { RECORDING_HELP, RECORDING_OPTIONS, recordingOptions } from "../recordingOptions.js";
 import { UsageError, choiceOption, numberOption, rangeOption } from "../usageError.js";
@@ -33,13 +33,18 @@ export const PIPELINE_CLI_OPTIONS = {
   critical: { type: "string" },
   rare: { type: "string" },
   quiet: { type: "boolean", default: false },
+  classes: { type: "string" },
+  "max-k-per-class": { type: "string" },
+  "min-share": { type: "string" },
+  importance: { type: "string" },
 } as const;
 
 export const PIPELINE_HELP = `  --out DIR            output folder                                  (default: out)
   --seed N             seed of every random choice                    (default: 1)
   --k N                number of k-means clusters                     (default: chosen by silhouette)
   --k-range A..B       k tried when --k is not given                  (default: 2..12)
-  --budget N           at most N test cases; critical and rare scenarios are kept even beyond it
+  --budget N           concrete test cases to run (default: 40, or the must-keep count when larger);
+                       below one per logical scenario with critical anchors is an error
   --target-share F     add representatives until they stand for this share of the km (0 < F <= 1)
   --window S           fixed scenario windows of S seconds            (default: 10)
   --event-windows A..B windows cut at lane changes and events, A to B seconds long
@@ -55,7 +60,12 @@ export const PIPELINE_HELP = `  --out DIR            output folder              
   --no-catalogue       do not write catalogue.duckdb
   --parquet            also export the catalogue tables to DIR/catalogue/*.parquet
   --openscenario       also write one ASAM OpenSCENARIO 1.x file per test case to DIR/openscenario/
-  --quiet              no progress display`;
+  --quiet              no progress display
+  --classes A,B        scenario classes clustered inside (others: one logical scenario each); ids in docs/logical.md
+  --max-k-per-class N  most logical scenarios per class                (default: 2)
+  --min-share F        logical scenarios with at least this km share get a test case first (default: 0.01)
+  --importance D       shift sampled variations D standard deviations towards the critical side, with
+                       likelihood-ratio weights in the plan              (default: 0, off)`;
 
 type PipelineCliValues = { [K in keyof typeof PIPELINE_CLI_OPTIONS]?: (typeof PIPELINE_CLI_OPTIONS)[K]["type"] extends "boolean" ? boolean : string };
 
@@ -68,6 +78,20 @@ export function pipelineOptions(v: PipelineCliValues): PipelineOptions {
   if (kr) o.kRange = kr;
   if (v.k !== undefined && v["k-range"] !== undefined) throw new UsageError("give --k or --k-range, not both");
   const budget = numberOption("budget", v.budget, { integer: true, min: 1 });
+  o.logical = {};
+  const fit: NonNullable<NonNullable<PipelineOptions["logical"]>["fit"]> = {};
+  if (v.classes !== undefined) {
+    const ids = v.classes.split(",").map((x) => x.trim()).filter((x) => x !== "");
+    for (const id of ids) if (!isScenarioClassId(id)) throw new UsageError(`--classes: unknown scenario class "${id}"; known: ${SCENARIO_CLASS_IDS.join(", ")}`);
+    fit.classes = ids;
+  }
+  const maxK = numberOption("max-k-per-class", v["max-k-per-class"], { integer: true, min: 1 });
+  if (maxK !== undefined) fit.maxK = maxK;
+  o.logical.fit = fit;
+  const minShare = numberOption("min-share", v["min-share"], { min: 0, max: 1 });
+  if (minShare !== undefined) o.logical.minShare = minShare;
+  const imp = numberOption("importance", v.importance, { min: 0, max: 5 });
+  if (imp !== undefined) o.logical.importanceShift = imp;
   const share = numberOption("target-share", v["target-share"], { min: Number.MIN_VALUE, max: 1 });
   if (budget !== undefined) o.plan!.budget = budget;
   if (share !== undefined) o.plan!.targetShare = share;
@@ -117,7 +141,7 @@ export async function planFromFiles(files: string[], readOptions: ReadRecordingO
       progress,
     });
     display.done();
-    process.stdout.write(`${planSummary(result.plan)}\n\n`);
+    process.stdout.write(`${result.plan.summary}\n\n`);
     const t = Object.entries(result.timings)
       .map(([k, s]) => `${k} ${s.toFixed(2)} s`)
       .join(", ");
