@@ -127,7 +127,7 @@ export function diffPlans(oldPlan: DiffablePlan, newPlan: DiffablePlan): PlanDif
     if (oldId !== undefined && oldId !== t.id) sameScenario.push({ oldId, newId: t.id, scenarioId: t.scenarioId });
   }
   if (sameScenario.length > 0)
-    warnings.push(`${sameScenario.length} test case(s) stand on the same recorded scenario under a new id (ids by rank, not by content?)`);
+    warnings.push(`${sameScenario.length} test case(s) stand on the same recorded scenario under a new id (with content-derived ids: their logical scenario changed; with rank ids: renumbered)`);
   let logical: EntryDiff | null = null;
   if (oldPlan.logicalScenarios && newPlan.logicalScenarios) {
     const so = lsShare(oldPlan);
