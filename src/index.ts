@@ -53,6 +53,7 @@ export * as pipeline from "./pipeline/index.js";
 export * as shard from "./shard/index.js";
 export * as extraction from "./extract/index.js";
 export * as catalogue from "./catalogue/index.js";
+export * as compare from "./compare/index.js";
 export * as report from "./report/index.js";
 
 /** @deprecated the flat names of 0.1, kept for one version; see src/legacy.ts. */

@@ -444,6 +444,6 @@ describe("readRoad", () => {
     writeFileSync(g, JSON.stringify({ name: "x", laneMarkings: [0, 3.5], frameRate: 25, speedlimit: 30 }));
     const w: string[] = [];
     await readRoad(g, w);
-    expect(w).toEqual([`${g}: unknown field "speedlimit" ignored (known: name, laneMarkings, frameRate, speedLimit, xRange, direction)`]);
+    expect(w).toEqual([`${g}: unknown field "speedlimit" ignored (known: name, laneMarkings, frameRate, speedLimit, xRange, direction, conditions)`]);
   });
 });

@@ -1,10 +1,16 @@
 import type { PipelineResult } from "../pipeline/runPipeline.js";
+import { CONDITION_FIELDS } from "../recording/conditions.js";
 import type { Table } from "./table.js";
 
 /** SQL-friendly column name for a feature name ("ego.speed.mean" → "ego_speed_mean"). */
 export function sqlName(name: string): string {
   const s = name.replace(/[^A-Za-z0-9_]+/g, "_").replace(/^_+|_+$/g, "");
   return /^[A-Za-z_]/.test(s) ? s : `f_${s}`;
+}
+
+/** Catalogue column of a condition field ("trafficDensity" → "traffic_density"). */
+export function conditionColumn(field: string): string {
+  return field.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 }
 
 const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -187,6 +193,8 @@ export function catalogueTables(r: PipelineResult): Table[] {
       { name: "scenarios", type: "INTEGER", values: r.recordings.map((x) => x.scenarios) },
       { name: "vehicle_km", type: "DOUBLE", values: r.recordings.map((x) => x.km) },
       { name: "vehicle_hours", type: "DOUBLE", values: r.recordings.map((x) => x.hours) },
+      // One column per condition field (snake case), NULL where the recording does not state it.
+      ...CONDITION_FIELDS.map((f) => ({ name: conditionColumn(f), type: "VARCHAR" as const, values: r.recordings.map((x) => x.conditions?.[f] ?? null) })),
     ],
   };
   const ls = r.plan.logicalScenarios;

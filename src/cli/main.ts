@@ -6,8 +6,11 @@
 import { InputError } from "../core/errors.js";
 import { VERSION } from "../core/version.js";
 import type { Command } from "./command.js";
+import { addCommand } from "./commands/add.js";
 import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
+import { compareCommand } from "./commands/compare.js";
+import { diffPlansCommand } from "./commands/diffPlans.js";
 import { demoCommand } from "./commands/demo.js";
 import { extractCommand } from "./commands/extract.js";
 import { generateCommand } from "./commands/generate.js";
@@ -16,7 +19,7 @@ import { resimCommand } from "./commands/resim.js";
 import { submitCommand, workerCommand } from "./commands/queue.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand, resimCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, addCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand, compareCommand, diffPlansCommand, resimCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));

@@ -1,6 +1,7 @@
 import type { Progress } from "../core/progress.js";
 import { detectAllManeuvers } from "../maneuvers/detectAllManeuvers.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
+import type { RecordingConditions } from "../recording/conditions.js";
 import type { Recording } from "../recording/types.js";
 import { buildScenarios } from "../scenario/buildScenarios.js";
 import type { ScenarioSet } from "../scenario/types.js";
@@ -14,6 +15,8 @@ export interface RecordingSummary {
   source: string;
   checksum: string;
   road: string;
+  /** The recording's conditions as stated in its road description ({} when none). */
+  conditions: RecordingConditions;
   lanes: number;
   frameRate: number;
   tracks: number;
@@ -80,6 +83,7 @@ export function extractRecording(
     source: rec.source,
     checksum: rec.checksum,
     road: rec.road.name,
+    conditions: { ...(rec.road.conditions ?? {}) },
     lanes: rec.road.laneMarkings.length - 1,
     frameRate: rec.road.frameRate,
     tracks: rec.tracks.length,

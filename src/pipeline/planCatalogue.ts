@@ -19,6 +19,7 @@ import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
 import { logicalModelToJSON } from "../logical/assignLogicalScenarios.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
 import type { ScenarioSet } from "../scenario/types.js";
+import type { RecordingConditions } from "../recording/conditions.js";
 import type { RecordingSummary } from "./extractRecording.js";
 import { mergeScenarioSets } from "./mergeScenarioSets.js";
 import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from "./options.js";
@@ -129,6 +130,10 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
 
   const inputChecksums: Record<string, string> = {};
   for (const r of c.summaries) inputChecksums[r.source] = r.checksum;
+  // Conditions go into the provenance only when some recording states them, so that plans of
+  // recordings without conditions keep their bytes.
+  const recordingConditions: Record<string, RecordingConditions> = {};
+  for (const r of c.summaries) if (r.conditions && Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
   const extraction = {
     maneuvers: o.maneuvers,
     scene: o.scene,
@@ -162,6 +167,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
             dbscan: db ? { eps: db.eps, minPts: db.minPts, components: db.components } : false,
             map: o.map,
             weightBy: o.weightBy,
+            ...(Object.keys(recordingConditions).length > 0 ? { recordingConditions } : {}),
           },
         },
         progress,

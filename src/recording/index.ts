@@ -13,3 +13,5 @@ export type { UnitMapping, UnitFactors, Ratio, LengthUnit, SpeedUnit, Accelerati
 export { DEFAULT_SIZES, KIND_NAMES } from "./kinds.js";
 export { PLAUSIBILITY_CHECKS, PLAUSIBILITY_DEFAULTS, resolvePlausibility } from "./plausibility.js";
 export type { PlausibilityCheck, PlausibilityOptions } from "./plausibility.js";
+export { validateConditions, conditionValue, CONDITION_FIELDS, CONDITION_VOCABULARY, NOT_GIVEN } from "./conditions.js";
+export type { RecordingConditions, ConditionField, RoadType, TrafficDensity, TimeOfDay, Weather, Lighting, RecordingMethod } from "./conditions.js";

@@ -14,6 +14,8 @@ import type { ReportCell, ReportDocument, ReportSection } from "./html.js";
 import { kDistanceFigure } from "./kDistanceFigure.js";
 import { kSweepFigure } from "./kSweepFigure.js";
 import { leadSections, LEAD_SECTIONS, type LeadSection } from "./leadSections.js";
+import { breakdown } from "../catalogue/breakdown.js";
+import { CONDITION_FIELDS, NOT_GIVEN } from "../recording/conditions.js";
 import { logicalSections } from "./logicalSection.js";
 import type { FidelityRow } from "../resim/fidelityTable.js";
 import { fidelitySection } from "./fidelitySection.js";
@@ -278,6 +280,14 @@ export function buildReport(r: PipelineResult, titleOrOptions: string | BuildRep
       },
     ],
   });
+  const stated = CONDITION_FIELDS.filter((f) => r.recordings.some((x) => x.conditions?.[f] !== undefined));
+  if (stated.length > 0)
+    sections[sections.length - 1]!.tables!.push({
+      caption: "Conditions as stated in each road description",
+      columns: ["recording", ...stated],
+      rows: r.recordings.map((x) => [x.id, ...stated.map((f) => x.conditions?.[f] ?? NOT_GIVEN)]),
+    });
+  if (r.recordings.length > 1) sections.push(breakdownSection(r, stated));
   // The same list as plan.json's "warnings" (planFromClustering hands the recordings' and stages'
   // warnings to the plan), so a reader of either sees the same.
   // Hook: re-simulation results (resim/resimPlanFolder), when the caller has them.
@@ -435,4 +445,47 @@ function describeWindow(r: PipelineResult): string {
   if (w?.mode === "fixed" && w.lengthS) return `${w.lengthS} s`;
   if (w?.mode === "events") return `${w.minS}–${w.maxS} s event-cut`;
   return "scenario";
+}
+
+/**
+ * Shares by recording and by every stated condition with at least two values: the categories with the
+ * largest shares, one column per group, and a caution naming the categories seen in one recording only.
+ */
+function breakdownSection(r: PipelineResult, stated: readonly (typeof CONDITION_FIELDS)[number][]): ReportSection {
+  const sc = r.scenarios.scenarios;
+  const tables: ReportSection["tables"] = [];
+  const bullets: string[] = [];
+  const groupings = ["recording" as const, ...stated.filter((f) => new Set(r.recordings.map((x) => x.conditions?.[f] ?? NOT_GIVEN)).size > 1)];
+  let kind = "type key";
+  for (const by of groupings) {
+    const b = breakdown(sc, r.recordings, by, r.weights, { typeKeys: r.typeKeys });
+    kind = b.categoryKind;
+    const share = new Map(b.rows.map((x) => [`${x.group}\u0000${x.category}`, x.share]));
+    const top = b.categories.slice(0, 15);
+    tables.push({
+      caption: `Share of ${r.options.weightBy} by ${by} (${b.categories.length} ${kind === "class" ? "classes" : "type keys"}; the ${top.length} largest overall)`,
+      columns: [kind, ...b.groups.map((g) => `${g.group} (${g.km.toFixed(1)} km)`), "recordings"],
+      rows: top.map((c) => [c.category, ...b.groups.map((g) => pct(share.get(`${g.group}\u0000${c.category}`) ?? 0, 1)), c.recordings.length]),
+    });
+    if (by === "recording") {
+      bullets.push(...b.warnings);
+      tables.push({
+        caption: `Coverage of each recording's own ${kind === "class" ? "classes" : "type keys"} (Good–Turing: chance its next scenario is of a kind it has not shown yet)`,
+        columns: ["recording", "scenarios", "kinds seen", "seen once", "seen twice", "unseen mass", "Chao1"],
+        rows: b.groups.map((g) => [g.group, g.scenarios, g.coverage.categories, g.coverage.singletons, g.coverage.doubletons, pct(g.coverage.unseenMass, 1), g.coverage.chao1.toFixed(1)]),
+      });
+    }
+  }
+  return {
+    id: "breakdown",
+    heading: "Shares by recording and condition",
+    paragraphs: [
+      `How the ${kind === "class" ? "classes" : "type keys"} divide each recording's ${r.options.weightBy}${groupings.length > 1 ? " and each stated condition's" : ""}. ` +
+        "A share that differs between recordings is a property of those recordings (site, day, traffic); a category seen in one recording only rests on that recording. " +
+        "roadsieve compare tests whether two groups differ (docs/catalogue-over-time.md).",
+    ],
+    bullets,
+    tone: bullets.length > 0 ? "caution" : "normal",
+    tables,
+  };
 }
