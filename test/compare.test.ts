@@ -62,7 +62,7 @@ describe("compareCatalogues, plan folders, condition groups and the CLI", () => 
     await writeOutputs(result, join(dir, "both"));
     await writeOutputs(runPipeline([a], { seed: 1, map: "pca", k: 3 }), join(dir, "light"));
     await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3 }), join(dir, "dense"));
-    await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3, scenario: { window: { mode: "fixed", seconds: 8 } } }), join(dir, "dense-8s"));
+    await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3, scenario: { window: { mode: "fixed", lengthS: 8 } } }), join(dir, "dense-8s"));
   }, 120_000);
 
   it("reads the same sides back from plan folders as from the pipeline result", async () => {
