@@ -58,7 +58,7 @@ export async function main(argv: string[]): Promise<number> {
     return await cmd.run(joinNegativeValues(rest));
   } catch (e) {
     if (e instanceof InputError || e instanceof UsageError || isParseArgsError(e)) {
-      process.stderr.write(`\nroadsieve ${cmd.name}: ${(e as Error).message.split("\n")[0]}\n`);
+      process.stderr.write(`${process.stderr.isTTY ? "\n" : ""}roadsieve ${cmd.name}: ${(e as Error).message.split("\n")[0]}\n`);
       return 2;
     }
     throw e;

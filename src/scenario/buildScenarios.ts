@@ -168,7 +168,7 @@ function summarize(
   const end = isLast ? b + 1 : b;
   const count = end - a;
   const seconds = tr.t[b]! - tr.t[a]!;
-  const km = (tr.x[b]! - tr.x[a]!) / 1000;
+  const km = Math.abs(tr.x[b]! - tr.x[a]!) / 1000; // a wrong-way track (a plausibility warning) still covers distance; never negative
   const occupancy = new Array<number>(NS).fill(0);
   let minTtc = Infinity;
   let minThw = Infinity;
