@@ -106,7 +106,7 @@ describe("breakdown", () => {
     // Reference: DuckDB's own aggregation of the catalogue tables.
     const sql = await queryCatalogue(
       db,
-      `SELECT r.traffic_density AS g, s.scenario_class AS c, count(*) AS n, sum(s.km) AS km, sum(s.seconds) / 3600 AS h,
+      `SELECT r.traffic_density AS g, s.scenario_class AS c, count(*) AS n, sum(s.km) AS km, sum(s.duration_s) / 3600 AS h,
               sum(s.km) / sum(sum(s.km)) OVER (PARTITION BY r.traffic_density) AS share
        FROM scenarios s JOIN recordings r ON s.recording = r.id GROUP BY 1, 2 ORDER BY 1, 2`,
     );

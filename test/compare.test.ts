@@ -62,7 +62,7 @@ describe("compareCatalogues, plan folders, condition groups and the CLI", () => 
     await writeOutputs(result, join(dir, "both"));
     await writeOutputs(runPipeline([a], { seed: 1, map: "pca", k: 3 }), join(dir, "light"));
     await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3 }), join(dir, "dense"));
-    await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3, scenario: { window: { mode: "fixed", seconds: 8 } } }), join(dir, "dense-8s"));
+    await writeOutputs(runPipeline([b], { seed: 1, map: "pca", k: 3, scenario: { window: { mode: "fixed", lengthS: 8 } } }), join(dir, "dense-8s"));
   }, 120_000);
 
   it("reads the same sides back from plan folders as from the pipeline result", async () => {
@@ -92,7 +92,7 @@ describe("compareCatalogues, plan folders, condition groups and the CLI", () => 
     const light = (await readPlanFolder(join(dir, "light"))).sample;
     const d8 = (await readPlanFolder(join(dir, "dense-8s"))).sample;
     expect(() => compareCatalogues(light, d8)).toThrow(InputError);
-    expect(() => compareCatalogues(light, d8)).toThrow(/different scenario windows \(scenario\.window\.seconds 10 vs 8\)/);
+    expect(() => compareCatalogues(light, d8)).toThrow(/different scenario windows \(scenario\.window\.lengthS 10 vs 8\)/);
     const older = { ...d8, making: { ...d8.making!, tool: "roadsieve 0.0.9", scenario: light.making!.scenario } };
     expect(() => compareCatalogues(light, older)).toThrow(/different tool versions \(roadsieve 0\.1\.0 vs roadsieve 0\.0\.9\)/);
     const otherScene = { ...light, name: "other scene", making: { ...light.making!, scene: { ...(light.making!.scene as Record<string, unknown>), ttcThreshold: 2.5 } } };

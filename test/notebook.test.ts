@@ -46,7 +46,7 @@ describe("notebook 01 and runPipeline", () => {
     const body = cells
       .join("\n\n")
       .replace(importLine, "")
-      .replaceAll("../out/notebook", out);
+      .replaceAll("../notebook-out/01", out);
     const script = `import * as lib from ${JSON.stringify(join(root, "src/index.ts"))};
 import { writeFileSync as __write } from "node:fs";
 const rs = { ...lib, show: () => {}, showTable: () => {}, showText: () => {}, loadPlotly: () => {} };

@@ -168,7 +168,7 @@ describe.skipIf(skipReason !== null)("extraction queue (BullMQ on a real Redis s
     await w.exited;
     expect(r.code).toBe(2);
     expect(r.stdout).toContain(`failed for good after 3 attempts: ${missing}: `);
-    expect(r.stdout).toContain("no road description");
+    expect(r.stdout).toContain("the tracks file does not exist");
     expect(w.lines.filter((l) => l.startsWith(`start ${missing} `))).toHaveLength(3);
     const p = cli(["plan", shards, "--out", join(dir, "q-bad"), "--quiet", "--no-catalogue"]);
     expect(p.code).toBe(2);

@@ -160,7 +160,7 @@ describe("plan from recordings, from shards, on 1 or 2 workers", () => {
     const msg = other.stderr.trim().split("\n").pop()!;
     expect(msg).toMatch(/shard-a\.shard\.json/);
     expect(msg).toMatch(/options\.scenario.*vs/);
-    expect(msg).toContain('"seconds":8');
+    expect(msg).toContain('"lengthS":8');
     const old = join(dir, "old-shards");
     cpSync(join(dir, "shards"), old, { recursive: true });
     const mp = join(old, "shard-a.shard.json");

@@ -53,7 +53,7 @@ export async function readPlanFolder(dir: string, name = dir): Promise<PlanFolde
     (await queryCatalogue(db, "SELECT column_name FROM information_schema.columns WHERE table_name = 'scenarios'")).map((r) => String(r.column_name)),
   );
   const hasClass = cols.has("scenario_class");
-  const sc = await queryCatalogue(db, `SELECT id, recording, ego_track, km, seconds, type_key, "cluster"${hasClass ? ", scenario_class" : ""} FROM scenarios ORDER BY idx`);
+  const sc = await queryCatalogue(db, `SELECT id, recording, ego_track, km, duration_s, type_key, "cluster"${hasClass ? ", scenario_class" : ""} FROM scenarios ORDER BY idx`);
   const info = await queryCatalogue(db, "SELECT column_name, feature, feature_group FROM feature_info ORDER BY rowid");
   const featureCols = info.map((r) => String(r.column_name));
   const feats = featureCols.length > 0 ? await queryCatalogue(db, `SELECT ${featureCols.map((c) => `"${c}"`).join(", ")} FROM features ORDER BY idx`) : [];
@@ -76,7 +76,7 @@ export async function readPlanFolder(dir: string, name = dir): Promise<PlanFolde
     categoryKind: useClass ? "class" : "type key",
     categories: sc.map((r) => String(useClass ? r.scenario_class : r.type_key)),
     km: sc.map((r) => Number(r.km)),
-    hours: sc.map((r) => Number(r.seconds) / 3600),
+    hours: sc.map((r) => Number(r.duration_s) / 3600),
     drives: sc.map((r) => `${String(r.recording)}/${String(r.ego_track)}`),
     recordings: sc.map((r) => String(r.recording)),
     features: featureCols.length > 0 ? { data, rows: sc.length, cols: featureCols.length } : null,

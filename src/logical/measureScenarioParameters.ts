@@ -99,7 +99,9 @@ function measureOne(c: Ctx, s: Scenario, k: number): void {
   const leaderAccel = (i: number): number => {
     const lt = scene.neighbourTrack[i * NS + AHEAD]!;
     if (lt < 0) return NaN;
-    return c.man[lt]!.motion.ax[scene.neighbourSample[i * NS + AHEAD]!]!;
+    const la = c.man[lt]!.motion.ax[scene.neighbourSample[i * NS + AHEAD]!]!;
+    // Beyond the physical bound: an artefact of a short or noisy leader track, not braking.
+    return Math.abs(la) > c.o.maxAccel ? NaN : la;
   };
   let following = 0;
   let brakePeak = -1;
@@ -241,8 +243,10 @@ function measureLeaderBraking(c: Ctx, k: number, a: number, e: number, peak: num
   f = Math.min(Math.max(f, a), peak);
   while (f < peak && scene.neighbours[f * NS + AHEAD] !== leaderId) f++;
   let peakDecel = 0;
-  if (seg) for (let j = seg.startFrame; j <= seg.endFrame; j++) peakDecel = Math.max(peakDecel, -lm.motion.ax[j]!);
-  else peakDecel = -lm.motion.ax[ls]!;
+  // Samples beyond the physical bound are artefacts and do not make the peak (options.maxAccel).
+  const plausible = (x: number): number => (Math.abs(x) > c.o.maxAccel ? 0 : x);
+  if (seg) for (let j = seg.startFrame; j <= seg.endFrame; j++) peakDecel = Math.max(peakDecel, -plausible(lm.motion.ax[j]!));
+  else peakDecel = -plausible(lm.motion.ax[ls]!);
   p.egoSpeed = val(m.motion.vx[f]);
   p.leaderSpeed = seg ? val(seg.startSpeed) : val(m.motion.vx[f]! + scene.dv[f * NS + AHEAD]!);
   p.gap = val(scene.gap[f * NS + AHEAD]);

@@ -14,6 +14,12 @@ export interface MeasureOptions {
   minWindowSeconds?: number;
   /** Egos observed for less than this in total cannot be judged: class "other" (s, default 2). */
   minTrackSeconds?: number;
+  /**
+   * Accelerations beyond this (either sign) are measurement artefacts, not driving: they neither
+   * make a window "leader-braking" nor enter a parameter (m/s², default 12: about 1.2 g, beyond
+   * what tyres on a dry road give; common practice, no source — the same bound as the critical events').
+   */
+  maxAccel?: number;
 }
 
 export type ResolvedMeasureOptions = Required<MeasureOptions>;
@@ -25,6 +31,7 @@ export const MEASURE_DEFAULTS: Readonly<ResolvedMeasureOptions> = Object.freeze(
   slowSpeed: 60 / 3.6,
   minWindowSeconds: 1,
   minTrackSeconds: 2,
+  maxAccel: 12,
 });
 
 export function resolveMeasureOptions(options: MeasureOptions = {}): ResolvedMeasureOptions {
