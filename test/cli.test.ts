@@ -70,7 +70,7 @@ describe("roadsieve command line", () => {
     mkdirSync(join(dir, "noy"), { recursive: true });
     writeFileSync(join(dir, "noy", "tracks.csv"), cut.join("\n"));
     copyFileSync(join(dir, "rec", "road.json"), join(dir, "noy", "road.json"));
-    const r = cli(["plan", join(dir, "noy", "tracks.csv"), "--quiet"]);
+    const r = cli(["plan", join(dir, "noy", "tracks.csv"), "--out", join(dir, "noy-out"), "--quiet"]);
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/"y"/);
   });
