@@ -80,6 +80,10 @@ describe("roadsieve command line", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toContain('--budget="zero" should be an integer >= 1');
     expect(cli(["plan", tracks, "--no-such-option"]).code).toBe(2);
+    // An unknown scenario class id names itself and the known ones (exit 2, one line).
+    const c = cli(["plan", tracks, "--classes", "following,tailgating", "--quiet"]);
+    expect(c.code).toBe(2);
+    expect(c.stderr.trim().split("\n").pop()).toMatch(/unknown scenario class "tailgating"; known: free-driving, following/);
     expect(cli(["frobnicate"]).code).toBe(2);
   });
 
@@ -88,10 +92,10 @@ describe("roadsieve command line", () => {
     for (const out of outs) {
       const r = cli(["plan", tracks, "--out", out, "--seed", "9", "--parquet", "--quiet"]);
       expect(r.code, r.stderr).toBe(0);
-      expect(r.stdout).toContain("test cases stand for");
+      expect(r.stdout).toContain("logical scenarios with a test case stand for");
     }
-    const parquet = ["recordings", "scenarios", "features", "feature_info", "maneuvers", "test_cases"].map((t) => `catalogue/${t}.parquet`);
-    for (const f of ["plan.json", "plan.csv", "model.json", "report.html", ...parquet]) {
+    const parquet = ["recordings", "scenarios", "features", "feature_info", "maneuvers", "test_cases", "logical_scenarios", "concrete_test_cases"].map((t) => `catalogue/${t}.parquet`);
+    for (const f of ["plan.json", "plan.csv", "logical-scenarios.csv", "model.json", "report.html", ...parquet]) {
       const a = readFileSync(join(outs[0]!, f));
       const b = readFileSync(join(outs[1]!, f));
       expect(a.equals(b), `${f} differs between runs`).toBe(true);
@@ -100,9 +104,12 @@ describe("roadsieve command line", () => {
     // cleared), so for catalogue.duckdb the promise is identical content: every query agrees.
     const q = "SELECT * FROM scenarios ORDER BY idx";
     expect(await queryCatalogue(join(outs[0]!, "catalogue.duckdb"), q)).toEqual(await queryCatalogue(join(outs[1]!, "catalogue.duckdb"), q));
-    const plan = JSON.parse(readFileSync(join(outs[0]!, "plan.json"), "utf8")) as { testCases: { share: number }[] };
+    const plan = JSON.parse(readFileSync(join(outs[0]!, "plan.json"), "utf8")) as { testCases: { weight: number }[]; logicalScenarios: { share: number }[] };
     expect(plan.testCases.length).toBeGreaterThan(0);
-    for (const t of plan.testCases) expect(t.share).toBeGreaterThanOrEqual(0);
+    for (const t of plan.testCases) expect(t.weight).toBeGreaterThan(0);
+    for (const l of plan.logicalScenarios) expect(l.share).toBeGreaterThanOrEqual(0);
+    // plan.csv: one row per concrete test case (plus the header).
+    expect(readFileSync(join(outs[0]!, "plan.csv"), "utf8").trim().split("\n").length).toBe(plan.testCases.length + 1);
   });
 });
 

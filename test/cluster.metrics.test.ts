@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { calinskiHarabasz, daviesBouldin, kmeans, silhouette, sweepK } from "../src/cluster/index.js";
+import { calinskiHarabasz, daviesBouldin, kmeans, silhouette, silhouetteDetail, sweepK } from "../src/cluster/index.js";
 import type { Matrix } from "../src/core/matrix.js";
 import { Rng } from "../src/core/rng.js";
 import { loadIris } from "./helpers/iris.js";
@@ -52,7 +52,8 @@ describe("cluster quality indices on Iris k=3", () => {
 
   it("silhouette, Calinski–Harabasz and Davies–Bouldin match the issue's scikit-learn values", () => {
     // Values stated in the issue for scikit-learn's copy of Iris with KMeans k=3.
-    const s = silhouette(iris, r.labels);
+    const s = silhouetteDetail(iris, r.labels);
+    expect(silhouette(iris, r.labels)).toBe(s.score); // a number, like the other two indices
     expect(s.exact).toBe(true);
     expect(s.sampleSize).toBe(150);
     expect(s.score).toBeCloseTo(0.552819, 6);
@@ -80,21 +81,21 @@ for f in ['L', 'N']:
     out += [silhouette_score(X[keep], L[keep]), calinski_harabasz_score(X[keep], L[keep]), davies_bouldin_score(X[keep], L[keep])]
 print(json.dumps(out))
 `);
-      const got = [r.labels, withNoise].flatMap((L) => [silhouette(iris, L).score, calinskiHarabasz(iris, L), daviesBouldin(iris, L)]);
+      const got = [r.labels, withNoise].flatMap((L) => [silhouette(iris, L), calinskiHarabasz(iris, L), daviesBouldin(iris, L)]);
       for (let i = 0; i < got.length; i++) expect(Math.abs(got[i]! - sk[i]!) / Math.abs(sk[i]!)).toBeLessThan(1e-10);
     } finally {
       ws.dispose();
     }
   });
 
-  it("silhouette(X, labels, {sampleSize}) samples reproducibly and says so", () => {
+  it("silhouetteDetail(X, labels, {sampleSize}) samples reproducibly and says so", () => {
     const { X, truth } = makeBlobs(3000, 5, 4, { seed: 3 });
-    const a = silhouette(X, truth, { sampleSize: 500, seed: 2 });
-    const b = silhouette(X, truth, { sampleSize: 500, seed: 2 });
+    const a = silhouetteDetail(X, truth, { sampleSize: 500, seed: 2 });
+    const b = silhouetteDetail(X, truth, { sampleSize: 500, seed: 2 });
     expect(a.exact).toBe(false);
     expect(a.sampleSize).toBe(500);
     expect(a.score).toBe(b.score);
-    const full = silhouette(X, truth, { sampleSize: 3000 });
+    const full = silhouetteDetail(X, truth, { sampleSize: 3000 });
     expect(full.exact).toBe(true);
     // A 500-row sample estimates the full score closely on well-separated blobs.
     expect(Math.abs(a.score - full.score)).toBeLessThan(0.02);
@@ -109,7 +110,7 @@ print(json.dumps(out))
 describe("sweepK", () => {
   it("sweepK on 5 separated blobs suggests k=5 and states its rule and silhouette sample", () => {
     const { X } = makeBlobs(2000, 4, 5, { seed: 13, std: 0.8, box: 10 });
-    const r = sweepK(X, { kMin: 2, kMax: 8, seed: 1, silhouetteSampleSize: 800 });
+    const r = sweepK(X, { kRange: [2, 8], seed: 1, silhouetteSampleSize: 800 });
     expect(r.rows.map((x) => x.k)).toEqual([2, 3, 4, 5, 6, 7, 8]);
     expect(r.suggestedK).toBe(5);
     expect(r.silhouetteSample).toBe(800);
@@ -125,6 +126,7 @@ describe("sweepK", () => {
   });
 
   it("sweepK rows equal kmeans with the per-k generator rng.fork(`k=${k}`) scored by the metric functions", () => {
+    // kMin / kMax: the deprecated spelling of kRange, still accepted for one version.
     const r = sweepK(iris, { kMin: 2, kMax: 4, seed: 5 });
     expect(r.silhouetteExact).toBe(true);
     expect(r.silhouetteSample).toBe(150);
@@ -132,7 +134,7 @@ describe("sweepK", () => {
     for (const row of r.rows) {
       const km = kmeans(iris, row.k, { rng: rng.fork(`k=${row.k}`) });
       expect(row.inertia).toBe(km.inertia);
-      expect(row.silhouette).toBeCloseTo(silhouette(iris, km.labels).score, 12);
+      expect(row.silhouette).toBeCloseTo(silhouette(iris, km.labels), 12);
       expect(row.calinskiHarabasz).toBe(calinskiHarabasz(iris, km.labels));
       expect(row.daviesBouldin).toBe(daviesBouldin(iris, km.labels));
     }

@@ -342,7 +342,7 @@ describe("zero-failure demonstration (Kalra & Paddock 2016)", () => {
     expect(miles / 1e6).toBeCloseTo(274.8, 1);
     expect(zeroFailureRateBound(miles, 0.95)).toBeCloseTo(1.09e-8, 20);
     expect(zeroFailureDistance(1.09e-8 / KM_PER_MILE) / miles).toBeCloseTo(KM_PER_MILE, 12);
-    expect(() => zeroFailureDistance(0)).toThrow(RangeError);
+    expect(() => zeroFailureDistance(0)).toThrow(InputError);
   });
 });
 
@@ -378,7 +378,7 @@ describe("scenarioTypeKey", () => {
       criticality: { minTtc: 1, minThw: 0.4, maxDrac: 3, maxDecel: 7, flags: ["thw", "harsh-braking", "thw"] },
     });
     const key = scenarioTypeKey(s, { lateral: "sequence", longitudinal: "sequence" });
-    expect(key).toBe("-|K>D>K+|occ:-|ev:cut-in,closing-in,harsh-braking,thw");
+    expect(key).toBe("-|K>D>K…|occ:-|ev:cut-in,closing-in,harsh-braking,thw");
     expect(scenarioTypeKey(s, { includeFlags: false })).toBe("LK|A+D|occ:-|ev:cut-in,closing-in");
     expect(parseTypeKey(key)).toEqual({
       lateral: [],
@@ -389,7 +389,7 @@ describe("scenarioTypeKey", () => {
       events: ["cut-in", "closing-in", "harsh-braking", "thw"],
     });
     const lc = makeScenario(2, { lateral: ["lane-change-left", "lane-keep", "lane-change-right", "lane-keep", "lane-change-left", "lane-keep", "lane-change-right"] });
-    expect(scenarioTypeKey(lc).split("|")[0]).toBe("LCL>LCR>LCL+");
+    expect(scenarioTypeKey(lc).split("|")[0]).toBe("LCL>LCR>LCL…");
   });
 
   it("rejects a wrong slot count and bad options", () => {

@@ -123,7 +123,7 @@ describe("embedScenarios", () => {
     );
     const r = buildRecording(tracks);
     const m = detectAllManeuvers(r);
-    const s2 = buildScenarios(r, m, buildScenes(r, m), { window: { mode: "fixed", seconds: 10 } });
+    const s2 = buildScenarios(r, m, buildScenes(r, m), { window: { mode: "fixed", lengthS: 10 } });
     expect(s2.scenarios).toHaveLength(24);
     const emb = embedScenarios(s2);
     const d = (a: number, b: number): number => {

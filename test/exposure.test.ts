@@ -115,8 +115,8 @@ describe("poissonInterval (Garwood 1936)", () => {
   it("has the right coverage at 90 % and rejects bad input", () => {
     // For 0 events the two-sided 90 % upper limit is −ln 0.05 = 2.9957 (the "rule of three").
     expect(poissonInterval(0, 0.9).upper).toBeCloseTo(2.995732273553991, 12);
-    expect(() => poissonInterval(-1)).toThrow(RangeError);
-    expect(() => poissonInterval(1.5)).toThrow(RangeError);
+    expect(() => poissonInterval(-1)).toThrow(InputError);
+    expect(() => poissonInterval(1.5)).toThrow(InputError);
     expect(() => poissonInterval(3, 1)).toThrow(/level=1/);
   });
 

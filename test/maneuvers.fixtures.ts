@@ -16,11 +16,17 @@ export function minimumJerk(tau: number): number {
   return tau * tau * tau * (10 - 15 * tau + 6 * tau * tau);
 }
 
+/** Constant lateral speed (ramp) and half-cosine profiles, the other shapes of issue 11. */
+export const constantSpeed = (tau: number): number => (tau <= 0 ? 0 : tau >= 1 ? 1 : tau);
+export const sinusoidal = (tau: number): number => (tau <= 0 ? 0 : tau >= 1 ? 1 : 0.5 * (1 - Math.cos(Math.PI * tau)));
+
 export interface LateralMove {
   /** Start time (s), duration (s), displacement (m, + to the left). */
   t0: number;
   duration: number;
   d: number;
+  /** Profile of the move (default minimum-jerk). */
+  shape?: "minimum-jerk" | "constant-speed" | "sinusoidal";
 }
 
 export interface TrackSpec {
@@ -40,6 +46,8 @@ export interface TrackSpec {
   /** Samples with t in (from, to) are removed: a time gap. */
   gap?: [number, number];
   kind?: Track["kind"];
+  /** Extra lateral offset as a function of time (m), e.g. a vehicle riding on a marking. */
+  lateral?: (t: number) => number;
 }
 
 /** Exact acceleration of a spec at time t. */
@@ -52,8 +60,11 @@ export function specAccel(spec: TrackSpec, t: number): number {
 /** Exact lateral position of a spec at time t. */
 export function specY(spec: TrackSpec, t: number): number {
   let y = laneCentre(spec.lane0);
-  for (const m of spec.moves ?? []) y += m.d * minimumJerk((t - m.t0) / m.duration);
-  return y;
+  for (const m of spec.moves ?? []) {
+    const f = m.shape === "constant-speed" ? constantSpeed : m.shape === "sinusoidal" ? sinusoidal : minimumJerk;
+    y += m.d * f((t - m.t0) / m.duration);
+  }
+  return y + (spec.lateral ? spec.lateral(t) : 0);
 }
 
 export function buildTrack(spec: TrackSpec): Track {

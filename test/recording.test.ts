@@ -233,7 +233,8 @@ describe("readRecording direction", () => {
 });
 
 describe("readRecording validation", () => {
-  const hint = `Fix the file, or pass onBadTrack: "reject" to leave such tracks out (they are then listed in Recording.rejected)`;
+  const hint = `Fix the file, or leave such tracks out (CLI --on-bad-track reject, API onBadTrack: "reject"; they are then listed as rejected)`;
+  const sortHint = `Sort each track's rows by time (CLI --sort-rows, API sortWithinTracks: true), fix the file, or leave such tracks out (CLI --on-bad-track reject, API onBadTrack: "reject"; they are then listed as rejected)`;
   // Rows count data records: the header is row 0, so row k is line k + 1 of the file.
   it("reports a non-numeric value with file, row, column and value (CSV)", async () => {
     const f = join(FIX, "bad-nonnumeric.csv");
@@ -278,7 +279,7 @@ describe("readRecording validation", () => {
   it("fails when time goes backwards inside a track", async () => {
     const f = join(FIX, "bad-backwards.csv");
     const e = await inputError(readRecording(f));
-    expect(e.message).toBe(`${f}, row 5, column "t", value "0.02": track 1: time goes backwards: t=0.02 after t=0.04 at row 3. ${hint}`);
+    expect(e.message).toBe(`${f}, row 5, column "t", value "0.02": track 1: time goes backwards: t=0.02 after t=0.04 at row 3. ${sortHint}`);
   });
 
   it("fails on a duplicate (track, time)", async () => {
@@ -348,11 +349,11 @@ describe("readRecording validation", () => {
   it("names the file when it does not exist or is not CSV", async () => {
     const f = join(tmp, "nope.csv");
     const e = await inputError(readRecording(f, { road: ROAD }));
-    expect(e.message).toMatch(new RegExp(`^${f.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}: cannot read the tracks file: ENOENT`));
+    expect(e.message).toMatch(new RegExp(`^${f.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}: the tracks file does not exist`));
     const d = dir("noroad");
     writeFileSync(join(d, "x.csv"), "track_id,t,x,y\n1,0,0,1\n");
     const e2 = await inputError(readRecording(join(d, "x.csv")));
-    expect(e2.message).toBe(`${join(d, "x.csv")}: no road description: expected ${join(d, "road.json")} beside the tracks file, or pass { road }`);
+    expect(e2.message).toBe(`${join(d, "x.csv")}: no road description: expected ${join(d, "road.json")} beside the tracks file, or give one (CLI --road FILE, API { road })`);
     writeFileSync(join(d, "x.parquet"), "this is not parquet");
     const e3 = await inputError(readRecording(join(d, "x.parquet"), { road: ROAD }));
     expect(e3.message).toMatch(/x\.parquet: cannot read as Parquet: /);
@@ -399,12 +400,14 @@ describe("readRecording derived motion, lanes, kinds", () => {
   it("assigns lanes from the markings and ignores a lane column unless lanes: 'file' (warning when they differ)", async () => {
     const d = dir("lanes");
     writeFileSync(join(d, "l.csv"), "track_id,t,x,y,lane\n1,0,0,1,7\n1,0.04,1,4,7\n1,0.08,2,12,7\n");
-    const rec = await readRecording(join(d, "l.csv"), { road: ROAD });
+    // y steps of 3 and 8 m in 0.04 s are implausible on purpose here (lanes only): accepted.
+    const accept = { accept: ["speed", "jump"] as const };
+    const rec = await readRecording(join(d, "l.csv"), { road: ROAD, plausibility: { accept: [...accept.accept] } });
     expect(Array.from(rec.tracks[0]!.lane)).toEqual([0, 1, -1]);
     expect(rec.warnings).toContain(
       `column "lane" ignored: lanes are assigned from road.laneMarkings, and the file's lane ids differ from them in 3 of 3 rows (option lanes: "file" uses the file's ids)`,
     );
-    const rec2 = await readRecording(join(d, "l.csv"), { road: ROAD, lanes: "file" });
+    const rec2 = await readRecording(join(d, "l.csv"), { road: ROAD, lanes: "file", plausibility: { accept: [...accept.accept] } });
     expect(Array.from(rec2.tracks[0]!.lane)).toEqual([7, 7, 7]);
   });
 
@@ -441,6 +444,6 @@ describe("readRoad", () => {
     writeFileSync(g, JSON.stringify({ name: "x", laneMarkings: [0, 3.5], frameRate: 25, speedlimit: 30 }));
     const w: string[] = [];
     await readRoad(g, w);
-    expect(w).toEqual([`${g}: unknown field "speedlimit" ignored (known: name, laneMarkings, frameRate, speedLimit, xRange, direction)`]);
+    expect(w).toEqual([`${g}: unknown field "speedlimit" ignored (known: name, laneMarkings, frameRate, speedLimit, xRange, direction, conditions)`]);
   });
 });

@@ -16,24 +16,24 @@ const times = (seconds: number, rate = 25): Float64Array => Float64Array.from({ 
 describe("cutWindows", () => {
   it("cuts fixed windows and lets the last absorb a remainder under half a window", () => {
     const t23 = times(23);
-    expect(cutWindows(t23, 0, t23.length, { mode: "fixed", seconds: 10 })).toEqual([
+    expect(cutWindows(t23, 0, t23.length, { mode: "fixed", lengthS: 10 })).toEqual([
       [0, 250],
       [250, 575],
     ]);
     const t25 = times(25);
-    expect(cutWindows(t25, 0, t25.length, { mode: "fixed", seconds: 10 })).toEqual([
+    expect(cutWindows(t25, 0, t25.length, { mode: "fixed", lengthS: 10 })).toEqual([
       [0, 250],
       [250, 500],
       [500, 625],
     ]);
     // A drive shorter than one window is one window.
     const t4 = times(4);
-    expect(cutWindows(t4, 0, t4.length, { mode: "fixed", seconds: 10 })).toEqual([[0, 100]]);
+    expect(cutWindows(t4, 0, t4.length, { mode: "fixed", lengthS: 10 })).toEqual([[0, 100]]);
   });
 
-  it("cuts at event points kept within [minSeconds, maxSeconds]", () => {
+  it("cuts at event points kept within [minS, maxS]", () => {
     const t = times(40);
-    const w = { mode: "events" as const, minSeconds: 4, maxSeconds: 12, leadSeconds: 1 };
+    const w = { mode: "events" as const, minS: 4, maxS: 12, leadS: 1 };
     // Cut points at 3 s (too early), 7 s and 30 s.
     expect(cutWindows(t, 0, t.length, w, [75, 175, 750])).toEqual([
       [0, 175],
@@ -41,7 +41,7 @@ describe("cutWindows", () => {
       [475, 750],
       [750, 1000],
     ]);
-    // A remainder shorter than minSeconds joins the last window.
+    // A remainder shorter than minS joins the last window.
     const t21 = times(21);
     expect(cutWindows(t21, 0, t21.length, w, [250])).toEqual([
       [0, 250],
@@ -88,7 +88,7 @@ describe("buildScenarios", () => {
   const rec = gen.recording;
 
   it("tiles every drive exactly in fixed windows, with a tensor of fixed shape", () => {
-    const set = chain(rec, { window: { mode: "fixed", seconds: 8 }, steps: 6 });
+    const set = chain(rec, { window: { mode: "fixed", lengthS: 8 }, steps: 6 });
     expectTiling(rec, set);
     const total = rec.tracks.reduce((s, tr) => s + (tr.x[tr.x.length - 1]! - tr.x[0]!) / 1000, 0);
     const sum = set.scenarios.reduce((s, sc) => s + sc.km, 0);
@@ -104,14 +104,14 @@ describe("buildScenarios", () => {
   });
 
   it("tiles every drive exactly in event windows", () => {
-    const set = chain(rec, { window: { mode: "events", minSeconds: 4, maxSeconds: 15 } });
+    const set = chain(rec, { window: { mode: "events", minS: 4, maxS: 15 } });
     expectTiling(rec, set);
     for (const sc of set.scenarios) if (!sc.partial) expect(sc.seconds).toBeGreaterThanOrEqual(4 - 1e-9);
   });
 
   it("tiles the runs on either side of a time gap separately", () => {
     const r = buildRecording([buildTrack({ id: 1, duration: 45, v0: 30, lane0: 0, gap: [20, 25], noiseSd: 0.1 })]);
-    const set = chain(r, { window: { mode: "fixed", seconds: 10 } });
+    const set = chain(r, { window: { mode: "fixed", lengthS: 10 } });
     expectTiling(r, set);
     for (const sc of set.scenarios) expect(sc.tEnd <= 20 || sc.tStart >= 25).toBe(true);
     expect(set.scenarios.map((s) => s.window)).toEqual(set.scenarios.map((_, i) => i));
@@ -156,7 +156,7 @@ describe("buildScenarios", () => {
         buildTrack({ id: 1, duration: 20, v0: 20, lane0: 1, x0: 300, moves: [{ t0: 12, duration: 3, d: -3.75 }] }),
         buildTrack({ id: 2, duration: 20, v0: 50, lane0: 2, x0: 50 }),
       ]),
-      { window: { mode: "fixed", seconds: 20 }, steps: 4 },
+      { window: { mode: "fixed", lengthS: 20 }, steps: 4 },
     );
     const sc = set.scenarios[0]!;
     expect(sc.seconds).toBeCloseTo(20, 6);
@@ -178,7 +178,7 @@ describe("buildScenarios", () => {
 
   it("summarizes criticality with flags", () => {
     const spec = (id: number, x0: number, v0: number): TrackSpec => ({ id, duration: 12, v0, lane0: 1, x0 });
-    const set = chain(buildRecording([buildTrack(spec(1, 0, 30)), buildTrack(spec(2, 24.5, 30))]), { window: { mode: "fixed", seconds: 12 } });
+    const set = chain(buildRecording([buildTrack(spec(1, 0, 30)), buildTrack(spec(2, 24.5, 30))]), { window: { mode: "fixed", lengthS: 12 } });
     const c = set.scenarios[0]!.criticality;
     // Gap 20 m at 30 m/s: THW 0.667 s, below 0.9 s; equal speeds, so no TTC.
     expect(c.minThw).toBeCloseTo(20 / 30, 3);
@@ -193,8 +193,11 @@ describe("buildScenarios", () => {
     const man = detectAllManeuvers(rec);
     const scenes = buildScenes(rec, man);
     expect(() => buildScenarios(rec, man, scenes, { steps: 0 })).toThrow(/steps=0 should be an integer/);
-    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "fixed", seconds: -2 } })).toThrow(InputError);
-    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "events", minSeconds: 10, maxSeconds: 5 } })).toThrow(/maxSeconds=5 should be a finite number >= minSeconds=10/);
+    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "fixed", lengthS: -2 } })).toThrow(InputError);
+    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "events", minS: 10, maxS: 5 } })).toThrow(/maxS=5 should be a finite number >= minS=10/);
+    // The 0.1 names are still accepted (deprecated) and mean the same options.
+    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "events", minSeconds: 10, maxSeconds: 5 } })).toThrow(/maxS=5 should be a finite number >= minS=10/);
+    expect(() => buildScenarios(rec, man, scenes, { window: { mode: "fixed", seconds: -2 } })).toThrow(/lengthS=-2/);
     expect(() => buildScenarios(rec, man, scenes, { window: { mode: "sliding" } as never })).toThrow(/window.mode="sliding"/);
     expect(() => buildScenarios(rec, man.slice(1), scenes)).toThrow(/one entry per track/);
   });

@@ -138,7 +138,10 @@ describe("buildScenes: neighbour slots", () => {
     const man = detectAllManeuvers(rec);
     expect(() => buildScenes(rec, [man[0]!])).toThrow(InputError);
     expect(() => buildScenes(rec, [man[1]!, man[0]!])).toThrow(/belongs to track 2, expected track 1/);
-    expect(() => buildScenes(rec, man, { ttcThreshold: -1 })).toThrow(/ttcThreshold=-1 should be a finite number > 0/);
+    expect(() => buildScenes(rec, man, { ttcBelow: -1 })).toThrow(/ttcBelow=-1 should be a finite number > 0/);
+    // The 0.1 name is still accepted (deprecated) and means the same option.
+    expect(() => buildScenes(rec, man, { ttcThreshold: -1 })).toThrow(/ttcBelow=-1 should be a finite number > 0/);
+    expect(() => buildScenes(rec, man, { ttcThreshold: 1, ttcBelow: 2 })).toThrow(/ttcThreshold is the deprecated name of ttcBelow/);
   });
 });
 
@@ -212,9 +215,9 @@ describe("buildScenes: events and flags", () => {
     expect(Array.from(s.flags).every((f) => (f & FLAG_THW) !== 0)).toBe(true);
     const firstTtc = Array.from(s.flags).findIndex((f) => (f & FLAG_TTC) !== 0);
     expect(firstTtc / 25).toBeCloseTo(0.5, 1);
-    // With thwThreshold 0.5 s the THW flag starts where the gap falls below 15 m, at t = 0.5 s.
+    // With thwBelow 0.5 s the THW flag starts where the gap falls below 15 m, at t = 0.5 s.
     const rec = buildRecording([buildTrack({ id: 1, duration: 1.6, v0: 30, lane0: 1, x0: 0 }), buildTrack({ id: 2, duration: 1.6, v0: 20, lane0: 1, x0: 24.5 })]);
-    const loose = buildScenes(rec, detectAllManeuvers(rec), { thwThreshold: 0.5 })[0]!;
+    const loose = buildScenes(rec, detectAllManeuvers(rec), { thwBelow: 0.5 })[0]!;
     expect(Array.from(loose.flags).findIndex((f) => (f & FLAG_THW) !== 0) / 25).toBeCloseTo(0.5, 1);
   });
 });

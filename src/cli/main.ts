@@ -6,14 +6,20 @@
 import { InputError } from "../core/errors.js";
 import { VERSION } from "../core/version.js";
 import type { Command } from "./command.js";
+import { addCommand } from "./commands/add.js";
 import { assignCommand } from "./commands/assign.js";
 import { checkCommand } from "./commands/check.js";
+import { compareCommand } from "./commands/compare.js";
+import { diffPlansCommand } from "./commands/diffPlans.js";
 import { demoCommand } from "./commands/demo.js";
+import { extractCommand } from "./commands/extract.js";
 import { generateCommand } from "./commands/generate.js";
 import { planCommand } from "./commands/plan.js";
+import { resimCommand } from "./commands/resim.js";
+import { submitCommand, workerCommand } from "./commands/queue.js";
 import { UsageError } from "./usageError.js";
 
-const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, checkCommand, generateCommand];
+const COMMANDS: Command[] = [demoCommand, planCommand, assignCommand, addCommand, extractCommand, submitCommand, workerCommand, checkCommand, generateCommand, compareCommand, diffPlansCommand, resimCommand];
 
 function mainHelp(): string {
   const width = Math.max(...COMMANDS.map((c) => c.name.length));
@@ -49,7 +55,7 @@ export async function main(argv: string[]): Promise<number> {
     return 0;
   }
   try {
-    return await cmd.run(rest);
+    return await cmd.run(joinNegativeValues(rest));
   } catch (e) {
     if (e instanceof InputError || e instanceof UsageError || isParseArgsError(e)) {
       process.stderr.write(`\nroadsieve ${cmd.name}: ${(e as Error).message.split("\n")[0]}\n`);
@@ -57,6 +63,23 @@ export async function main(argv: string[]): Promise<number> {
     }
     throw e;
   }
+}
+
+/**
+ * "--budget -1": node's parseArgs takes "-1" for an option and reports "argument is ambiguous";
+ * joining a negative number to the option before it lets the option's own check name the problem.
+ */
+function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i]!;
+    const next = argv[i + 1];
+    if (a.startsWith("--") && !a.includes("=") && next !== undefined && /^-(\d|\.\d|Infinity)/.test(next)) {
+      out.push(`${a}=${next}`);
+      i++;
+    } else out.push(a);
+  }
+  return out;
 }
 
 function isParseArgsError(e: unknown): boolean {

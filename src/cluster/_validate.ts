@@ -13,10 +13,32 @@ export function checkMatrix(X: Matrix, name = "X", minRows = 1, checkValues = tr
   if (X.rows < minRows) throw new InputError(`${name}: n_samples=${X.rows} should be >= ${minRows}`);
   if (!checkValues) return;
   const a = X.data;
+  let big = 0;
+  let at = -1;
   for (let i = 0; i < a.length; i++) {
     const v = a[i]!;
     if (v - v !== 0) throw notFinite(name, X.cols, i, v);
+    const m = v < 0 ? -v : v;
+    if (m > big) {
+      big = m;
+      at = i;
+    }
   }
+  checkMagnitude(name, X, big, at);
+}
+
+/**
+ * Overflow: a squared distance is at most cols · (2·max|x|)², a sum of them (inertia, distance sums)
+ * at most rows times that. Finite values can still overflow there (±1e200 → Infinity, then NaN
+ * inertia and arbitrary labels), so they are refused, naming the largest value.
+ */
+export function checkMagnitude(name: string, X: Matrix, big: number, at: number): void {
+  if (Number.isFinite(4 * big * big * X.cols * Math.max(1, X.rows))) return;
+  const a = X.data;
+  throw new InputError(
+    `${name}: row ${Math.floor(at / X.cols)}, column ${at % X.cols} is ${a[at]}; values this large overflow squared distances (rows · cols · (2·max|x|)² must stay below ${Number.MAX_VALUE.toExponential(3)}): rescale the data (e.g. standardize it)`,
+    { row: Math.floor(at / X.cols), column: String(at % X.cols), value: a[at] },
+  );
 }
 
 export function notFinite(name: string, cols: number, i: number, v: number): InputError {
@@ -61,6 +83,9 @@ export function checkLabels(labels: Int32Array, n: number, name = "labels"): num
   for (let i = 0; i < n; i++) {
     const l = labels[i]!;
     if (l < -1) throw new InputError(`${name}[${i}]=${l} should be >= -1 (-1 = noise)`, { row: i, value: l });
+    // Labels are 0..k-1 with k <= n_samples; per-cluster arrays are sized by the largest label, so
+    // a stray 1e9 would allocate gigabytes for clusters that cannot exist.
+    if (l >= n) throw new InputError(`${name}[${i}]=${l} should be < n_samples=${n} (labels are 0..k-1 with at most one cluster per row)`, { row: i, value: l });
     if (l > max) max = l;
   }
   return max + 1;

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import { zeros, type Matrix } from "../core/matrix.js";
 import type { Progress } from "../core/progress.js";
@@ -38,8 +39,8 @@ export interface ResolvedClusteringOptions {
 
 /** Defaults of the clustering policy; the pipeline uses the same table. */
 export const CLUSTERING_DEFAULTS = {
-  kRange: [2, 12] as [number, number],
-  nInit: 4,
+  kRange: [DEFAULTS.kRange[0], DEFAULTS.kRange[1]] as [number, number],
+  nInit: DEFAULTS.nInit,
   dbscanVariance: 0.9,
   dbscanMaxComponents: 8,
 };
@@ -139,7 +140,7 @@ export function fitClustering(embedding: Embedding, options: FitClusteringOption
   if (o.k === null) {
     const kMax = Math.min(o.kRange[1], n - 1);
     const kMin = Math.min(o.kRange[0], kMax);
-    sweep = timed("choose k", () => sweepK(X, { kMin, kMax, rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
+    sweep = timed("choose k", () => sweepK(X, { kRange: [kMin, kMax], rng: rng.fork("sweep"), weights, nInit: o.nInit, progress }));
     k = sweep.suggestedK;
     warnings.push(...sweep.warnings);
   }

@@ -3,7 +3,7 @@ export { kmeans, absoluteTolerance, shareMatrix, MIN_ROWS_FOR_THREADS } from "./
 export type { KMeansOptions, KMeansResult, KMeansAlgorithm } from "./kmeans.js";
 export { kmeansPlusPlus } from "./kmeansPlusPlus.js";
 export type { KMeansPlusPlusOptions } from "./kmeansPlusPlus.js";
-export { silhouette, calinskiHarabasz, daviesBouldin, SILHOUETTE_SAMPLE_SIZE } from "./metrics.js";
+export { silhouette, silhouetteDetail, calinskiHarabasz, daviesBouldin, SILHOUETTE_SAMPLE_SIZE } from "./metrics.js";
 export type { SilhouetteOptions, SilhouetteResult } from "./metrics.js";
 export { sweepK, SWEEP_RULE } from "./sweepK.js";
 export type { SweepKOptions, SweepKRow, SweepKResult } from "./sweepK.js";

@@ -1,8 +1,9 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
 import type { Progress } from "../core/progress.js";
-import { checkInt, checkMatrix, checkNumber, checkThreads, checkWeights, notFinite } from "./_validate.js";
+import { checkInt, checkMagnitude, checkMatrix, checkNumber, checkThreads, checkWeights, notFinite } from "./_validate.js";
 import { KMEANS_KERNEL_SOURCE, OP_HAMERLY, OP_INERTIA, OP_INIT, OP_LLOYD } from "./_kmeansKernel.js";
 import { Team, autoThreads, isShared, ref, sharedF64, sharedI32 } from "./_team.js";
 import { seedKMeansPlusPlus } from "./kmeansPlusPlus.js";
@@ -100,9 +101,9 @@ function resolveOptions(X: Matrix, k: number, o: KMeansOptions): ResolvedKMeansO
   const threadsOpt = checkThreads(o.threads ?? "auto");
   const wanted = threadsOpt === "auto" ? autoThreads() : threadsOpt;
   const threads = X.rows < MIN_ROWS_FOR_THREADS ? 1 : Math.max(1, Math.min(wanted, Math.floor(X.rows / 25_000)));
-  const nInitDefault = init === "k-means++" ? 3 : 1;
+  const nInitDefault = init === "k-means++" ? DEFAULTS.nInit : 1;
   return {
-    rng: o.rng ?? new Rng(o.seed ?? 0),
+    rng: o.rng ?? new Rng(o.seed ?? DEFAULTS.seed),
     init,
     nInit: checkInt("nInit", o.nInit ?? nInitDefault, 1),
     maxIter: checkInt("maxIter", o.maxIter ?? 300, 1),
@@ -143,16 +144,23 @@ function scanRows(X: Matrix, tol: number): number {
   const { rows: n, cols: d, data } = X;
   const s1 = new Float64Array(d);
   const s2 = new Float64Array(d);
+  let big = 0;
+  let at = -1;
   for (let i = 0; i < n; i++) {
     const o = i * d;
     for (let t = 0; t < d; t++) {
       const v = data[o + t]!;
       if (v - v !== 0) throw notFinite("X", d, o + t, v);
+      if (v > big || -v > big) {
+        big = v < 0 ? -v : v;
+        at = o + t;
+      }
       const a = v - data[t]!;
       s1[t]! += a;
       s2[t]! += a * a;
     }
   }
+  checkMagnitude("X", X, big, at);
   let s = 0;
   for (let t = 0; t < d; t++) {
     const m = s1[t]! / n;
@@ -242,6 +250,10 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     team.close();
   }
   const res = best!;
+  // Bounded inputs cannot overflow (checkMatrix); this catches what slips through (e.g. explicit
+  // initial centres far outside the data) instead of returning NaN inertia and arbitrary labels.
+  if (!Number.isFinite(res.inertia))
+    throw new InputError(`k-means: the inertia is ${res.inertia} (squared distances overflowed); rescale the data and the initial centres`);
   if (nInit > 1) warnings.push(...bestWarnings.map((w) => `best restart: ${w}`));
   else warnings.push(...bestWarnings);
   return {

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { zeros } from "../core/matrix.js";
 import { Rng } from "../core/rng.js";
@@ -30,7 +31,7 @@ export function kmeansPlusPlus(X: Matrix, k: number, options: KMeansPlusPlusOpti
 
 /** kmeansPlusPlus without the boundary checks, for callers that already validated X (kmeans). */
 export function seedKMeansPlusPlus(X: Matrix, k: number, options: KMeansPlusPlusOptions): Matrix {
-  const rng = options.rng ?? new Rng(options.seed ?? 0);
+  const rng = options.rng ?? new Rng(options.seed ?? DEFAULTS.seed);
   const trials = checkInt("localTrials", options.localTrials ?? 2 + Math.floor(Math.log(k)), 1);
   const wAll = checkWeights(options.weights, X.rows);
   const sampleSize = options.sampleSize ?? Infinity;

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
@@ -27,15 +28,24 @@ export interface SilhouetteResult {
 export const SILHOUETTE_SAMPLE_SIZE = 5000;
 
 /**
- * Mean silhouette coefficient (Rousseeuw 1987), as scikit-learn's silhouette_score: exact when
- * n <= sampleSize, otherwise on a seeded uniform sample of sampleSize rows (distances only among the
- * sampled rows, as silhouette_score(sample_size=…) does). The sample size is in the result.
+ * Mean silhouette coefficient (Rousseeuw 1987), as scikit-learn's silhouette_score: a number, like
+ * calinskiHarabasz and daviesBouldin. Exact when n <= sampleSize, otherwise on a seeded uniform
+ * sample (see silhouetteDetail for the sample, the per-row values and whether it was exact).
  */
-export function silhouette(X: Matrix, labels: Int32Array, options: SilhouetteOptions = {}): SilhouetteResult {
+export function silhouette(X: Matrix, labels: Int32Array, options: SilhouetteOptions = {}): number {
+  return silhouetteDetail(X, labels, options).score;
+}
+
+/**
+ * The silhouette with its working: mean score, per-row values, the rows used. Exact when
+ * n <= sampleSize, otherwise on a seeded uniform sample of sampleSize rows (distances only among the
+ * sampled rows, as silhouette_score(sample_size=…) does).
+ */
+export function silhouetteDetail(X: Matrix, labels: Int32Array, options: SilhouetteOptions = {}): SilhouetteResult {
   checkMatrix(X, "X");
   const k = checkLabels(labels, X.rows);
   const sampleSize = checkInt("sampleSize", options.sampleSize ?? SILHOUETTE_SAMPLE_SIZE, 2);
-  const rng = options.rng ?? new Rng(options.seed ?? 0);
+  const rng = options.rng ?? new Rng(options.seed ?? DEFAULTS.seed);
   const exact = X.rows <= sampleSize;
   const rows = exact ? Int32Array.from({ length: X.rows }, (_, i) => i) : rng.fork("silhouette").sampleIndices(X.rows, sampleSize);
   const sub = Int32Array.from(rows, (r) => labels[r]!);

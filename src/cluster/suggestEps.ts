@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
 import { Rng } from "../core/rng.js";
@@ -47,7 +48,7 @@ export function suggestEps(X: Matrix, options: SuggestEpsOptions = {}): SuggestE
   const k = minPts - 1;
   if (X.rows < minPts) throw new InputError(`n_samples=${X.rows} should be >= minPts=${minPts}`);
   const sampleSize = checkInt("sampleSize", options.sampleSize ?? 20_000, 3);
-  const rng = options.rng ?? new Rng(options.seed ?? 0);
+  const rng = options.rng ?? new Rng(options.seed ?? DEFAULTS.seed);
   const rows = X.rows <= sampleSize ? null : rng.fork("suggestEps").sampleIndices(X.rows, sampleSize);
   const m = rows ? rows.length : X.rows;
   const tree = new KdTree(X);

@@ -7,3 +7,6 @@ export type { Progress, ProgressEvent } from "./progress.js";
 export { silentProgress, throttleProgress } from "./progress.js";
 export { writeFileAtomic, sha256File, sha256Text } from "./io.js";
 export { VERSION } from "./version.js";
+export { openOutputFolder } from "./outputFolder.js";
+export type { OutputFolder, Manifest, ManifestInput } from "./outputFolder.js";
+export { DEFAULTS } from "./defaults.js";

@@ -1,3 +1,4 @@
+import { InputError } from "./errors.js";
 /** Row-major dense matrix of float64 values. The one matrix shape used across roadsieve. */
 export interface Matrix {
   data: Float64Array;
@@ -16,10 +17,10 @@ export function fromRows(rows: ArrayLike<ArrayLike<number>>): Matrix {
   const m = zeros(n, d);
   for (let i = 0; i < n; i++) {
     const r = rows[i]!;
-    if (r.length !== d) throw new RangeError(`row ${i} has ${r.length} values, expected ${d} like row 0`);
+    if (r.length !== d) throw new InputError(`row ${i} has ${r.length} values, expected ${d} like row 0`);
     for (let j = 0; j < d; j++) {
       const v = r[j]!;
-      if (!Number.isFinite(v)) throw new RangeError(`row ${i}, column ${j}: value ${v} should be a finite number`);
+      if (!Number.isFinite(v)) throw new InputError(`row ${i}, column ${j}: value ${v} should be a finite number`);
       m.data[i * d + j] = v;
     }
   }
@@ -64,12 +65,12 @@ export function sqDist(a: Matrix, i: number, b: Matrix, j: number): number {
 
 /** Validate a matrix argument once at a stage boundary. */
 export function assertMatrix(m: Matrix, name = "matrix"): void {
-  if (!m || !(m.data instanceof Float64Array)) throw new TypeError(`${name} should be { data: Float64Array, rows, cols }`);
+  if (!m || !(m.data instanceof Float64Array)) throw new InputError(`${name} should be { data: Float64Array, rows, cols }`);
   if (m.data.length !== m.rows * m.cols)
-    throw new RangeError(`${name}: data.length=${m.data.length} should equal rows*cols=${m.rows * m.cols}`);
+    throw new InputError(`${name}: data.length=${m.data.length} should equal rows*cols=${m.rows * m.cols}`);
   for (let k = 0; k < m.data.length; k++) {
     const v = m.data[k]!;
     if (!Number.isFinite(v))
-      throw new RangeError(`${name}: row ${Math.floor(k / m.cols)}, column ${k % m.cols} is ${v}; expected a finite number`);
+      throw new InputError(`${name}: row ${Math.floor(k / m.cols)}, column ${k % m.cols} is ${v}; expected a finite number`);
   }
 }

@@ -1,3 +1,4 @@
+import { InputError } from "./errors.js";
 /**
  * Seeded pseudo-random generator: xoshiro128** (Blackman & Vigna, "Scrambled linear pseudorandom
  * number generators", 2018), seeded through splitmix32 so that any 32-bit seed gives a well-mixed
@@ -13,7 +14,7 @@ export class Rng {
   readonly seed: number;
 
   constructor(seed: number) {
-    if (!Number.isFinite(seed)) throw new RangeError(`seed=${seed} should be a finite number`);
+    if (!Number.isFinite(seed)) throw new InputError(`seed=${seed} should be a finite number`);
     this.seed = seed;
     let x = (Math.trunc(seed) ^ 0x9e3779b9) >>> 0;
     const next = (): number => {
@@ -58,7 +59,7 @@ export class Rng {
 
   /** Uniform integer in [0, n). Unbiased (rejection sampling). */
   int(n: number): number {
-    if (!(n >= 1) || !Number.isInteger(n)) throw new RangeError(`n=${n} should be an integer >= 1`);
+    if (!(n >= 1) || !Number.isInteger(n)) throw new InputError(`n=${n} should be an integer >= 1`);
     if (n <= 0x100000000) {
       const limit = Math.floor(0x100000000 / n) * n;
       for (;;) {

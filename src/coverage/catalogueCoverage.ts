@@ -1,3 +1,5 @@
+import { renameDeprecated } from "../core/aliases.js";
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import { compensatedSum } from "../exposure/compensatedSum.js";
 import { checkLevel } from "../exposure/poissonInterval.js";
@@ -9,7 +11,9 @@ import { additionalSamplesForShare, type EffortMethod } from "./samplingEffort.j
 import { unseenMass } from "./unseenMass.js";
 
 export interface CoverageOptions {
-  /** Confidence level of the Chao1 interval (default 0.95). */
+  /** Confidence level of the Chao1 interval (default DEFAULTS.confidence = 0.95). */
+  confidence?: number;
+  /** @deprecated use confidence (accepted for one version). */
   level?: number;
   /** Chao1 variant (default "bias-corrected"). */
   chao1Variant?: Chao1Variant;
@@ -32,7 +36,7 @@ export interface CoverageOptions {
 }
 
 interface CoverageDefaults {
-  level: number;
+  confidence: number;
   chao1Variant: Chao1Variant;
   finiteSampleFactor: boolean;
   targetShares: number[];
@@ -46,7 +50,7 @@ interface CoverageDefaults {
 export type ResolvedCoverageOptions = CoverageDefaults;
 
 export const COVERAGE_DEFAULTS: Readonly<CoverageDefaults> = {
-  level: 0.95,
+  confidence: DEFAULTS.confidence,
   chao1Variant: "bias-corrected",
   finiteSampleFactor: false,
   targetShares: [0.9, 0.95, 0.99],
@@ -60,8 +64,9 @@ export const COVERAGE_DEFAULTS: Readonly<CoverageDefaults> = {
 
 export function resolveCoverageOptions(options: CoverageOptions = {}): ResolvedCoverageOptions {
   const o: CoverageDefaults = { ...COVERAGE_DEFAULTS, targetShares: [...COVERAGE_DEFAULTS.targetShares] };
-  for (const k of Object.keys(options) as (keyof CoverageOptions)[]) if (options[k] !== undefined) (o as unknown as Record<string, unknown>)[k] = options[k];
-  checkLevel(o.level);
+  const given = renameDeprecated(options, { level: "confidence" }, "coverage options");
+  for (const k of Object.keys(given) as (keyof CoverageOptions)[]) if (given[k] !== undefined) (o as unknown as Record<string, unknown>)[k] = given[k];
+  checkLevel(o.confidence);
   for (const g of o.targetShares)
     if (!(g > 0 && g < 1)) throw new InputError(`targetShares contains ${g}; each share should be strictly between 0 and 1`, { column: "targetShares", value: g });
   if (!(o.couponQuantile > 0 && o.couponQuantile < 1))
@@ -143,7 +148,7 @@ export function catalogueCoverage(
   const fc = frequencyCounts(counts);
   const totalKm = compensatedSum(km);
   const kmPer = totalKm / n;
-  const c1 = chao1(counts, { variant: o.chao1Variant, finiteSampleFactor: o.finiteSampleFactor, level: o.level });
+  const c1 = chao1(counts, { variant: o.chao1Variant, finiteSampleFactor: o.finiteSampleFactor, confidence: o.confidence });
   const f0opts = { f0: c1.f0 };
   const effort = o.targetShares.map((g) => {
     const add = additionalSamplesForShare(counts, g, { ...f0opts, method: o.effortMethod });

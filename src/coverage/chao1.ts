@@ -1,3 +1,6 @@
+import { InputError } from "../core/errors.js";
+import { renameDeprecated } from "../core/aliases.js";
+import { DEFAULTS } from "../core/defaults.js";
 import { checkLevel } from "../exposure/poissonInterval.js";
 import { normalQuantile } from "../exposure/gamma.js";
 import { frequencyCounts, type FrequencyCounts } from "./abundance.js";
@@ -12,7 +15,9 @@ export interface Chao1Options {
   variant?: Chao1Variant;
   /** Multiply the unseen term by (n − 1) / n, as in Chao (2005) and the iNEXT/SpadeR software (default false). */
   finiteSampleFactor?: boolean;
-  /** Confidence level of the interval (default 0.95). */
+  /** Confidence level of the interval (default DEFAULTS.confidence = 0.95). */
+  confidence?: number;
+  /** @deprecated use confidence (accepted for one version). */
   level?: number;
 }
 
@@ -57,9 +62,9 @@ export function chao1F0(fc: Pick<FrequencyCounts, "n" | "f1" | "f2">, variant: C
  */
 export function chao1(counts: ArrayLike<number>, options: Chao1Options = {}): Chao1Result {
   const variant = options.variant ?? "bias-corrected";
-  if (variant !== "bias-corrected" && variant !== "classic") throw new RangeError(`variant="${String(variant)}" should be "bias-corrected" or "classic"`);
+  if (variant !== "bias-corrected" && variant !== "classic") throw new InputError(`variant="${String(variant)}" should be "bias-corrected" or "classic"`);
   const factor = options.finiteSampleFactor ?? false;
-  const level = options.level ?? 0.95;
+  const level = renameDeprecated(options, { level: "confidence" }, "chao1 options").confidence ?? DEFAULTS.confidence;
   checkLevel(level);
   const z = normalQuantile(1 - (1 - level) / 2);
   const fc = frequencyCounts(counts);

@@ -65,7 +65,7 @@ const EULER_GAMMA = 0.57721566490153286061;
 
 /** H_n = Σ_{k=1}^{n} 1/k: summed smallest-first up to 10⁶, asymptotic expansion beyond (error < 1e-30). */
 export function harmonicNumber(n: number): number {
-  if (!(Number.isInteger(n) && n >= 0)) throw new RangeError(`n=${n} should be an integer >= 0`);
+  if (!(Number.isInteger(n) && n >= 0)) throw new InputError(`n=${n} should be an integer >= 0`);
   if (n <= 1e6) {
     let s = 0;
     for (let k = n; k >= 1; k--) s += 1 / k;
@@ -76,12 +76,12 @@ export function harmonicNumber(n: number): number {
 }
 
 function checkQuantiles(qs: number[]): void {
-  for (const q of qs) if (!(q > 0 && q < 1)) throw new RangeError(`quantile ${q} should be strictly between 0 and 1`);
+  for (const q of qs) if (!(q > 0 && q < 1)) throw new InputError(`quantile ${q} should be strictly between 0 and 1`);
 }
 
 /** n equally likely kinds: E = n·H_n, quantiles t_q = −n ln(1 − q^{1/n}) of the Poissonized time. */
 export function couponCollectorEqual(n: number, options: Pick<CouponCollectorOptions, "quantiles"> = {}): CouponCollectorResult {
-  if (!(Number.isInteger(n) && n >= 1)) throw new RangeError(`n=${n} should be an integer >= 1`);
+  if (!(Number.isInteger(n) && n >= 1)) throw new InputError(`n=${n} should be an integer >= 1`);
   const qs = options.quantiles ?? [0.5, 0.95, 0.999];
   checkQuantiles(qs);
   return {
@@ -223,7 +223,7 @@ export function couponCollector(input: ProbabilityGroup[] | GroupedProbabilities
  * the total probability is kept.
  */
 export function groupProbabilities(probabilities: ArrayLike<number>, relTol = 0): GroupedProbabilities {
-  if (!(relTol >= 0)) throw new RangeError(`relTol=${relTol} should be >= 0`);
+  if (!(relTol >= 0)) throw new InputError(`relTol=${relTol} should be >= 0`);
   const v = Float64Array.from(probabilities);
   for (let i = 0; i < v.length; i++)
     if (!(v[i]! > 0 && v[i]! <= 1)) throw new InputError(`probability ${i} is ${v[i]}; expected a value in (0, 1]`, { row: i + 1, value: v[i] });
@@ -265,9 +265,9 @@ function powerSum(a: number, b: number, s: number): number {
  * first and last probabilities differ by at most that factor.
  */
 export function zipfProbabilities(n: number, s = 1, relTol = 1e-3): GroupedProbabilities {
-  if (!(Number.isInteger(n) && n >= 1)) throw new RangeError(`n=${n} should be an integer >= 1`);
-  if (!(s > 0)) throw new RangeError(`s=${s} should be > 0`);
-  if (!(relTol >= 0)) throw new RangeError(`relTol=${relTol} should be >= 0`);
+  if (!(Number.isInteger(n) && n >= 1)) throw new InputError(`n=${n} should be an integer >= 1`);
+  if (!(s > 0)) throw new InputError(`s=${s} should be > 0`);
+  if (!(relTol >= 0)) throw new InputError(`relTol=${relTol} should be >= 0`);
   const growth = Math.pow(1 + relTol, 1 / s);
   // Ranks i with (1 + 1/i)^s > 1 + relTol stay single.
   const single = relTol === 0 ? n : Math.min(n, Math.floor(1 / (growth - 1)));

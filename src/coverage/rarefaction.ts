@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { logGamma } from "../exposure/gamma.js";
 import { chao1F0, type Chao1Variant } from "./chao1.js";
 import { frequencyCounts, type FrequencyCounts } from "./abundance.js";
@@ -18,7 +19,7 @@ function logMissProbability(n: number, x: number, m: number): number {
 }
 
 function checkSize(m: number, name: string): void {
-  if (!(Number.isInteger(m) && m >= 0)) throw new RangeError(`${name}=${m} should be an integer >= 0`);
+  if (!(Number.isInteger(m) && m >= 0)) throw new InputError(`${name}=${m} should be an integer >= 0`);
 }
 
 /**
@@ -30,7 +31,7 @@ function checkSize(m: number, name: string): void {
 export function rarefiedRichness(counts: ArrayLike<number>, m: number, fc: FrequencyCounts = frequencyCounts(counts)): number {
   checkSize(m, "m");
   const { n, f } = fc;
-  if (m > n) throw new RangeError(`m=${m} should be <= n=${n} for rarefaction; use extrapolatedRichness beyond n`);
+  if (m > n) throw new InputError(`m=${m} should be <= n=${n} for rarefaction; use extrapolatedRichness beyond n`);
   if (m === 0) return 0;
   let s = 0;
   for (let x = 1; x < f.length; x++) {
@@ -57,11 +58,11 @@ export interface ExtrapolationOptions {
  */
 export function extrapolatedRichness(counts: ArrayLike<number>, size: number, options: ExtrapolationOptions = {}, fc: FrequencyCounts = frequencyCounts(counts)): number {
   // Real sizes are allowed here: the formula is smooth in m*, which the effort calculation uses.
-  if (!(size >= 0) || !Number.isFinite(size)) throw new RangeError(`size=${size} should be a finite number >= 0`);
+  if (!(size >= 0) || !Number.isFinite(size)) throw new InputError(`size=${size} should be a finite number >= 0`);
   const { n, sObs, f1 } = fc;
-  if (size < n) throw new RangeError(`size=${size} should be >= n=${n} for extrapolation; use rarefiedRichness below n`);
+  if (size < n) throw new InputError(`size=${size} should be >= n=${n} for extrapolation; use rarefiedRichness below n`);
   const f0 = options.f0 ?? chao1F0(fc, options.variant, options.finiteSampleFactor);
-  if (!(f0 >= 0)) throw new RangeError(`f0=${f0} should be >= 0`);
+  if (!(f0 >= 0)) throw new InputError(`f0=${f0} should be >= 0`);
   if (f1 === 0 || f0 === 0) return sObs;
   const mStar = size - n;
   // (1 − f1/(n f0 + f1))^m* via log1p/expm1 so that large n keeps its precision.

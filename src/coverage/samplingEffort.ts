@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { frequencyCounts } from "./abundance.js";
 import { chao1F0, type Chao1Variant } from "./chao1.js";
 
@@ -24,7 +25,7 @@ export interface EffortOptions {
  * Infinity for g = 1.
  */
 export function additionalSamplesForShare(counts: ArrayLike<number>, g: number, options: EffortOptions = {}): number {
-  if (!(g > 0 && g <= 1)) throw new RangeError(`g=${g} should be a share in (0, 1]`);
+  if (!(g > 0 && g <= 1)) throw new InputError(`g=${g} should be a share in (0, 1]`);
   const fc = frequencyCounts(counts);
   const { n, sObs, f1 } = fc;
   const f0 = options.f0 ?? chao1F0(fc, options.variant, options.finiteSampleFactor);
@@ -40,7 +41,7 @@ export function additionalSamplesForShare(counts: ArrayLike<number>, g: number, 
       return -Math.log(ratio) / Math.log1p(-f1 / (n * f0 + f1));
     default: {
       const never: never = method;
-      throw new RangeError(`method "${String(never)}" should be "chao2009" or "exact"`);
+      throw new InputError(`method "${String(never)}" should be "chao2009" or "exact"`);
     }
   }
 }

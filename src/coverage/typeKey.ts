@@ -12,7 +12,7 @@ import type { Scenario } from "../scenario/types.js";
  * - lateral ("lane-changes", default): the ego's lane changes in order, LCL left and LCR right,
  *   joined by ">"; "LK" when it kept its lane. "sequence": every lateral maneuver in order
  *   (LK lane keep, LCL, LCR) as extraction collapsed them. A sequence longer than `maxManeuvers`
- *   keeps its first `maxManeuvers` codes and ends in "+".
+ *   keeps its first `maxManeuvers` codes and ends in "…" ("+" only ever means "and", as in "A+D").
  * - longitudinal ("set", default): which of accelerate (A) and decelerate (D) occur, "A", "D" or
  *   "A+D", and "K" when the ego only kept its speed; "sequence": every longitudinal maneuver in
  *   order (K, A, D) joined by ">"; "none" leaves the part out (the key then has three parts).
@@ -34,7 +34,7 @@ export interface TypeKeyOptions {
   occupancy?: "sides" | "slots";
   /** A slot counts as occupied when its occupancy share is strictly above this (default 0.5). */
   occupiedAbove?: number;
-  /** Longest sequence kept before it is cut and marked "+" (default 3). */
+  /** Longest sequence kept before it is cut and marked "…" (default 3). */
   maxManeuvers?: number;
   /** Append the scenario's criticality flags (e.g. "harsh-braking") to the events (default true). */
   includeFlags?: boolean;
@@ -88,7 +88,7 @@ export function resolveTypeKeyOptions(options: TypeKeyOptions = {}): ResolvedTyp
 
 function sequence(codes: string[], max: number): string {
   if (codes.length === 0) return "-";
-  return codes.length > max ? `${codes.slice(0, max).join(">")}+` : codes.join(">");
+  return codes.length > max ? `${codes.slice(0, max).join(">")}…` : codes.join(">");
 }
 
 const SIDES = ["ahead", "behind", "left", "right"] as const;
@@ -162,7 +162,7 @@ export function parseTypeKey(key: string): TypeKeyParts {
   const parts = key.split("|");
   if (parts.length !== 3 && parts.length !== 4) throw new InputError(`type key "${key}" should have 3 or 4 parts separated by "|"`, { value: key });
   const seq = (p: string): { items: string[]; cut: boolean } => {
-    const cut = p.endsWith("+");
+    const cut = p.endsWith("…");
     const body = cut ? p.slice(0, -1) : p;
     // "A+D" (a set) splits on "+", sequences on ">".
     return { items: body === "-" ? [] : body.split(/[>+]/), cut };

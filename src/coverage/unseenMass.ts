@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { frequencyCounts } from "./abundance.js";
 
 export type UnseenMassMethod = "good-turing" | "chao-jost";
@@ -22,7 +23,7 @@ export function unseenMass(counts: ArrayLike<number>, method: UnseenMassMethod =
     }
     default: {
       const never: never = method;
-      throw new RangeError(`unseen-mass method "${String(never)}" should be "good-turing" or "chao-jost"`);
+      throw new InputError(`unseen-mass method "${String(never)}" should be "good-turing" or "chao-jost"`);
     }
   }
 }

@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 /**
  * Zero-failure demonstration: with no event in d units of exposure, a Poisson rate below r is shown at
  * confidence C when e^{−r d} ≤ 1 − C, i.e. d = −ln(1 − C) / r. Kalra & Paddock (2016, "Driving to
@@ -5,15 +6,15 @@
  * 95 % needs about 275 million failure-free miles.
  */
 export function zeroFailureDistance(rate: number, confidence = 0.95): number {
-  if (!(rate > 0) || !Number.isFinite(rate)) throw new RangeError(`rate=${rate} should be a finite number > 0 (events per unit of exposure)`);
-  if (!(confidence > 0 && confidence < 1)) throw new RangeError(`confidence=${confidence} should be strictly between 0 and 1`);
+  if (!(rate > 0) || !Number.isFinite(rate)) throw new InputError(`rate=${rate} should be a finite number > 0 (events per unit of exposure)`);
+  if (!(confidence > 0 && confidence < 1)) throw new InputError(`confidence=${confidence} should be strictly between 0 and 1`);
   return -Math.log1p(-confidence) / rate;
 }
 
 /** The rate bound d units of failure-free exposure demonstrate at confidence C: −ln(1 − C) / d. */
 export function zeroFailureRateBound(distance: number, confidence = 0.95): number {
-  if (!(distance > 0) || !Number.isFinite(distance)) throw new RangeError(`distance=${distance} should be a finite number > 0`);
-  if (!(confidence > 0 && confidence < 1)) throw new RangeError(`confidence=${confidence} should be strictly between 0 and 1`);
+  if (!(distance > 0) || !Number.isFinite(distance)) throw new InputError(`distance=${distance} should be a finite number > 0`);
+  if (!(confidence > 0 && confidence < 1)) throw new InputError(`confidence=${confidence} should be strictly between 0 and 1`);
   return -Math.log1p(-confidence) / distance;
 }
 

@@ -1,3 +1,4 @@
+import { DEFAULTS } from "../core/defaults.js";
 import { UMAP } from "umap-js";
 import type { Matrix } from "../core/matrix.js";
 import { InputError } from "../core/errors.js";
@@ -9,7 +10,7 @@ import { pca } from "./pca.js";
 export type Map2dMethod = "pca" | "umap";
 
 export interface Map2dOptions {
-  /** "pca" (default: exact, fast) or "umap" (umap-js, seeded). */
+  /** "umap" (default, DEFAULTS.map: umap-js, seeded, as the pipeline) or "pca" (exact, fast). */
   method?: Map2dMethod;
   seed?: number;
   rng?: Rng;
@@ -48,7 +49,7 @@ export const UMAP_PLACEMENT =
 export function map2d(X: Matrix, options: Map2dOptions = {}): Map2dResult {
   if (!X || !(X.data instanceof Float64Array) || X.data.length !== X.rows * X.cols)
     throw new InputError("X should be a Matrix { data: Float64Array, rows, cols } with data.length = rows*cols");
-  const method = options.method ?? "pca";
+  const method = options.method ?? DEFAULTS.map;
   const warnings: string[] = [];
   const n = X.rows;
   const d = X.cols;
@@ -79,7 +80,7 @@ function intOpt(name: string, v: number | undefined, def: number, min: number): 
 }
 
 function umapMap(X: Matrix, n: number, d: number, o: Map2dOptions, warnings: string[]): Map2dResult {
-  const rng = o.rng ?? new Rng(o.seed ?? 0);
+  const rng = o.rng ?? new Rng(o.seed ?? DEFAULTS.seed);
   const sampleSize = intOpt("sampleSize", o.sampleSize, 2000, 3);
   const k = intOpt("nNeighbors", o.nNeighbors, 15, 2);
   const nEpochs = intOpt("nEpochs", o.nEpochs, 200, 1);

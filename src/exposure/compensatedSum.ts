@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 /**
  * Neumaier's improved Kahan summation (Neumaier 1974, "Rundungsfehleranalyse einiger Verfahren zur
  * Summation endlicher Summen", ZAMM 54). The error bound does not grow with the number of terms,
@@ -23,11 +24,11 @@ export function compensatedSum(values: ArrayLike<number>, indices?: ArrayLike<nu
  */
 export function toShares(weights: ArrayLike<number>): Float64Array {
   const total = compensatedSum(weights);
-  if (!(total > 0) || !Number.isFinite(total)) throw new RangeError(`weights add up to ${total}; expected a finite total > 0`);
+  if (!(total > 0) || !Number.isFinite(total)) throw new InputError(`weights add up to ${total}; expected a finite total > 0`);
   const out = new Float64Array(weights.length);
   for (let i = 0; i < weights.length; i++) {
     const w = weights[i]!;
-    if (!(w >= 0) || !Number.isFinite(w)) throw new RangeError(`weight ${i} is ${w}; expected a finite number >= 0`);
+    if (!(w >= 0) || !Number.isFinite(w)) throw new InputError(`weight ${i} is ${w}; expected a finite number >= 0`);
     out[i] = w / total;
   }
   return out;

@@ -1,3 +1,5 @@
+import { renameDeprecated } from "../core/aliases.js";
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import type { Scenario } from "../scenario/types.js";
 import { compensatedSum } from "./compensatedSum.js";
@@ -12,7 +14,9 @@ import { checkLevel, poissonRate } from "./poissonInterval.js";
 
 /** Options shared by every exposure figure. */
 export interface ExposureOptions {
-  /** Confidence level of the rate intervals (default 0.95). */
+  /** Confidence level of the rate intervals (default DEFAULTS.confidence = 0.95). */
+  confidence?: number;
+  /** @deprecated use confidence (accepted for one version). */
   level?: number;
   /** Drives per year of an average driver; enables the E1–E3 frequency readings (default: unknown). */
   drivesPerYear?: number;
@@ -27,17 +31,17 @@ export interface ExposureOptions {
 }
 
 interface ExposureDefaults {
-  level: number;
+  confidence: number;
   almostEveryDrive: number;
 }
-export type ResolvedExposureOptions = ExposureDefaults & Omit<ExposureOptions, keyof ExposureDefaults>;
+export type ResolvedExposureOptions = ExposureDefaults & Omit<ExposureOptions, keyof ExposureDefaults | "level">;
 
-export const EXPOSURE_DEFAULTS: Readonly<ExposureDefaults> = { level: 0.95, almostEveryDrive: 0.9 };
+export const EXPOSURE_DEFAULTS: Readonly<ExposureDefaults> = { confidence: DEFAULTS.confidence, almostEveryDrive: 0.9 };
 
 /** Resolve and validate exposure options once. */
 export function resolveExposureOptions(options: ExposureOptions = {}): ResolvedExposureOptions {
-  const o: ResolvedExposureOptions = { ...EXPOSURE_DEFAULTS, ...stripUndefined(options) };
-  checkLevel(o.level);
+  const o: ResolvedExposureOptions = { ...EXPOSURE_DEFAULTS, ...stripUndefined(renameDeprecated(options, { level: "confidence" }, "exposure options")) };
+  checkLevel(o.confidence);
   if (!(o.almostEveryDrive > 0 && o.almostEveryDrive <= 1))
     throw new InputError(`almostEveryDrive=${o.almostEveryDrive} should be in (0, 1]`, { column: "almostEveryDrive", value: o.almostEveryDrive });
   if (o.drivesPerYear !== undefined && !(o.drivesPerYear > 0 && Number.isFinite(o.drivesPerYear)))
@@ -138,14 +142,14 @@ export function describeExposure(ctx: ExposureContext, indices: ArrayLike<number
   const seenDrive = new Set<number>();
   for (let k = 0; k < m; k++) {
     const i = indices[k]!;
-    if (!(Number.isInteger(i) && i >= 0 && i < ctx.n)) throw new RangeError(`scenario index ${i} is outside [0, ${ctx.n})`);
+    if (!(Number.isInteger(i) && i >= 0 && i < ctx.n)) throw new InputError(`scenario index ${i} is outside [0, ${ctx.n})`);
     seenDrive.add(ctx.driveOf[i]!);
   }
   const km = compensatedSum(ctx.km, indices);
   const seconds = compensatedSum(ctx.seconds, indices);
   const share = km / ctx.totalKm;
   const timeShare = seconds / ctx.totalSeconds;
-  const rate = poissonRate(m, ctx.totalKm, 1000, ctx.options.level);
+  const rate = poissonRate(m, ctx.totalKm, 1000, ctx.options.confidence);
   const o = ctx.options;
   const perDrive =
     o.typicalDriveKm !== undefined

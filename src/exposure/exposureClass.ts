@@ -10,6 +10,7 @@
  * The tool only offers these readings next to the recorded figures. The class that counts is decided
  * by the responsible safety process (hazard analysis and risk assessment), not by this code.
  */
+import { InputError } from "../core/errors.js";
 
 export type DurationClass = "E2" | "E3" | "E4";
 export type FrequencyClass = "E1" | "E2" | "E3" | "E4";
@@ -27,7 +28,7 @@ export const FREQUENCY_WORDING: Readonly<Record<FrequencyClass, string>> = {
 
 /** Exposure class by share of operating time (Table B.2, from memory): E2 < 1 %, E3 1–10 %, E4 > 10 %. */
 export function exposureClassByTimeShare(timeShare: number): DurationClass {
-  if (!(timeShare >= 0 && timeShare <= 1 + 1e-12)) throw new RangeError(`timeShare=${timeShare} should be a fraction in [0, 1]`);
+  if (!(timeShare >= 0 && timeShare <= 1 + 1e-12)) throw new InputError(`timeShare=${timeShare} should be a fraction in [0, 1]`);
   if (timeShare < 0.01) return "E2";
   if (timeShare <= 0.1) return "E3";
   return "E4";
@@ -61,7 +62,7 @@ export function exposureClassByFrequency(b: FrequencyBasis): FrequencyReading {
   const every = b.almostEveryDrive ?? 0.9;
   const p = b.probabilityPerDrive;
   const pct = (v: number): string => `${(100 * v).toPrecision(3)} %`;
-  if (!(p >= 0 && p <= 1)) throw new RangeError(`probabilityPerDrive=${p} should be in [0, 1]`);
+  if (!(p >= 0 && p <= 1)) throw new InputError(`probabilityPerDrive=${p} should be in [0, 1]`);
   if (p >= every)
     return { class: "E4", wording: FREQUENCY_WORDING.E4, basis: `present in ${pct(p)} of drives (>= ${pct(every)})` };
   if (b.drivesPerYear === undefined)

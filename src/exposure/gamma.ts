@@ -8,6 +8,7 @@
  * (Press et al. 2007, 3rd ed., §6.2.1), working on whichever tail is smaller so that quantiles
  * close to 0 or 1 keep their relative precision.
  */
+import { InputError } from "../core/errors.js";
 
 const LANCZOS_G = 7;
 const LANCZOS = [
@@ -33,8 +34,8 @@ export function logGamma(x: number): number {
 }
 
 function checkShape(a: number, x: number): void {
-  if (!(a > 0) || !Number.isFinite(a)) throw new RangeError(`shape a=${a} should be a finite number > 0`);
-  if (!(x >= 0)) throw new RangeError(`x=${x} should be a number >= 0`);
+  if (!(a > 0) || !Number.isFinite(a)) throw new InputError(`shape a=${a} should be a finite number > 0`);
+  if (!(x >= 0)) throw new InputError(`x=${x} should be a number >= 0`);
 }
 
 /** The common prefactor x^a e^(−x) / Γ(a), in log space for large a. */
@@ -100,8 +101,8 @@ export function regularizedGammaQ(a: number, x: number): number {
  * `upperTail: true` solves Q(a, x) = p instead, which keeps precision for quantiles near 1.
  */
 export function inverseRegularizedGamma(a: number, p: number, upperTail = false): number {
-  if (!(a > 0) || !Number.isFinite(a)) throw new RangeError(`shape a=${a} should be a finite number > 0`);
-  if (!(p >= 0 && p <= 1)) throw new RangeError(`probability p=${p} should be in [0, 1]`);
+  if (!(a > 0) || !Number.isFinite(a)) throw new InputError(`shape a=${a} should be a finite number > 0`);
+  if (!(p >= 0 && p <= 1)) throw new InputError(`probability p=${p} should be in [0, 1]`);
   // Lower-tail probability pl and upper-tail probability pu, both kept exactly as given.
   const pl = upperTail ? 1 - p : p;
   const pu = upperTail ? p : 1 - p;
@@ -141,7 +142,7 @@ export function inverseRegularizedGamma(a: number, p: number, upperTail = false)
 
 /** Quantile of the chi-square distribution with `df` degrees of freedom: 2 · P⁻¹(df / 2, p). */
 export function chiSquareQuantile(p: number, df: number): number {
-  if (!(df > 0)) throw new RangeError(`df=${df} should be > 0`);
+  if (!(df > 0)) throw new InputError(`df=${df} should be > 0`);
   return 2 * inverseRegularizedGamma(df / 2, p);
 }
 
@@ -153,33 +154,48 @@ export function erfc(x: number): number {
 }
 
 /**
- * Quantile of the standard normal distribution: Acklam's rational approximation (relative error
- * 1.15e-9) refined by one Halley step on erfc, which brings it to full double precision.
+ * Quantile of the standard normal distribution: Wichura's algorithm AS 241 (PPND16; Applied
+ * Statistics 37, 1988, 477–484), rational approximations of degree 7 in three regions, accurate to
+ * about 1 part in 10^16. The upper half is computed by symmetry, Φ⁻¹(p) = −Φ⁻¹(1 − p), where 1 − p
+ * is exact for p ≥ 1/2 (Sterbenz), so both tails keep their relative precision; for an upper-tail
+ * probability q that is not representable as 1 − q, use {@link normalQuantileUpper}.
  */
 export function normalQuantile(p: number): number {
-  if (!(p >= 0 && p <= 1)) throw new RangeError(`probability p=${p} should be in [0, 1]`);
+  if (!(p >= 0 && p <= 1)) throw new InputError(`probability p=${p} should be in [0, 1]`);
   if (p === 0) return -Infinity;
   if (p === 1) return Infinity;
-  const a = [-3.969683028665376e1, 2.209460984245205e2, -2.759285104469687e2, 1.38357751867269e2, -3.066479806614716e1, 2.506628277459239];
-  const b = [-5.447609879822406e1, 1.615858368580409e2, -1.556989798598866e2, 6.680131188771972e1, -1.328068155288572e1];
-  const c = [-7.784894002430293e-3, -3.223964580411365e-1, -2.400758277161838, -2.549732539343734, 4.374664141464968, 2.938163982698783];
-  const d = [7.784695709041462e-3, 3.224671290700398e-1, 2.445134137142996, 3.754408661907416];
-  const plow = 0.02425;
-  let x: number;
-  if (p < plow) {
-    const q = Math.sqrt(-2 * Math.log(p));
-    x = (((((c[0]! * q + c[1]!) * q + c[2]!) * q + c[3]!) * q + c[4]!) * q + c[5]!) / ((((d[0]! * q + d[1]!) * q + d[2]!) * q + d[3]!) * q + 1);
-  } else if (p <= 1 - plow) {
-    const q = p - 0.5;
-    const r = q * q;
-    x = ((((((a[0]! * r + a[1]!) * r + a[2]!) * r + a[3]!) * r + a[4]!) * r + a[5]!) * q) /
-      (((((b[0]! * r + b[1]!) * r + b[2]!) * r + b[3]!) * r + b[4]!) * r + 1);
-  } else {
-    const q = Math.sqrt(-2 * Math.log(1 - p));
-    x = -(((((c[0]! * q + c[1]!) * q + c[2]!) * q + c[3]!) * q + c[4]!) * q + c[5]!) / ((((d[0]! * q + d[1]!) * q + d[2]!) * q + d[3]!) * q + 1);
+  if (p === 0.5) return 0;
+  return p < 0.5 ? lowerQuantile(p) : 0 - lowerQuantile(1 - p);
+}
+
+/** Upper-tail quantile: the x with P(Z > x) = q, i.e. −Φ⁻¹(q) (scipy's norm.isf). */
+export function normalQuantileUpper(q: number): number {
+  if (!(q >= 0 && q <= 1)) throw new InputError(`probability q=${q} should be in [0, 1]`);
+  return 0 - normalQuantile(q);
+}
+
+// AS 241 coefficients (Wichura 1988), ascending powers; the denominators' constant term is 1.
+const AS241_A = [3.387132872796366608, 133.14166789178437745, 1971.5909503065514427, 13731.693765509461125, 45921.953931549871457, 67265.770927008700853, 33430.575583588128105, 2509.0809287301226727];
+const AS241_B = [1, 42.313330701600911252, 687.1870074920579083, 5394.1960214247511077, 21213.794301586595867, 39307.89580009271061, 28729.085735721942674, 5226.495278852854561];
+const AS241_C = [1.42343711074968357734, 4.6303378461565452959, 5.7694972214606914055, 3.64784832476320460504, 1.27045825245236838258, 0.24178072517745061177, 0.0227238449892691845833, 7.7454501427834140764e-4];
+const AS241_D = [1, 2.05319162663775882187, 1.6763848301838038494, 0.68976733498510000455, 0.14810397642748007459, 0.0151986665636164571966, 5.475938084995344946e-4, 1.05075007164441684324e-9];
+const AS241_E = [6.6579046435011037772, 5.4637849111641143699, 1.7848265399172913358, 0.29656057182850489123, 0.026532189526576123093, 0.0012426609473880784386, 2.71155556874348757815e-5, 2.01033439929228813265e-7];
+const AS241_F = [1, 0.59983220655588793769, 0.13692988092273580531, 0.0148753612908506148525, 7.868691311456132591e-4, 1.8463183175100546818e-5, 1.4215117583164458887e-7, 2.04426310338993978564e-15];
+
+function horner(c: readonly number[], x: number): number {
+  let acc = c[c.length - 1]!;
+  for (let k = c.length - 2; k >= 0; k--) acc = acc * x + c[k]!;
+  return acc;
+}
+
+/** Φ⁻¹(p) for 0 < p < 1/2 (negative): AS 241 on the lower half. */
+function lowerQuantile(p: number): number {
+  const q = p - 0.5; // exact for p in [1/4, 1/2]; the central region starts at 0.075
+  if (q >= -0.425) {
+    const r = 0.180625 - q * q;
+    return (q * horner(AS241_A, r)) / horner(AS241_B, r);
   }
-  // Halley refinement: e = Φ(x) − p with Φ(x) = erfc(−x/√2)/2.
-  const e = 0.5 * erfc(-x / Math.SQRT2) - p;
-  const u = e * Math.sqrt(2 * Math.PI) * Math.exp((x * x) / 2);
-  return x - u / (1 + (x * u) / 2);
+  const r = Math.sqrt(-Math.log(p));
+  if (r <= 5) return 0 - horner(AS241_C, r - 1.6) / horner(AS241_D, r - 1.6);
+  return 0 - horner(AS241_E, r - 5) / horner(AS241_F, r - 5);
 }

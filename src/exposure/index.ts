@@ -1,5 +1,5 @@
 /** Exposure: what each cluster and test case stands for in kilometres, hours, shares and rates. */
-export { logGamma, regularizedGammaP, regularizedGammaQ, inverseRegularizedGamma, chiSquareQuantile, erfc, normalQuantile } from "./gamma.js";
+export { logGamma, regularizedGammaP, regularizedGammaQ, inverseRegularizedGamma, chiSquareQuantile, erfc, normalQuantile, normalQuantileUpper } from "./gamma.js";
 export { poissonInterval, poissonRate, checkLevel } from "./poissonInterval.js";
 export type { Interval, RateEstimate } from "./poissonInterval.js";
 export { compensatedSum, toShares } from "./compensatedSum.js";

@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import { inverseRegularizedGamma } from "./gamma.js";
 
 /** A two-sided confidence interval. */
@@ -10,7 +11,7 @@ export interface Interval {
 
 /** Validate a confidence level once at the boundary. */
 export function checkLevel(level: number, name = "level"): void {
-  if (!(level > 0 && level < 1)) throw new RangeError(`${name}=${level} should be a confidence level strictly between 0 and 1`);
+  if (!(level > 0 && level < 1)) throw new InputError(`${name}=${level} should be a confidence level strictly between 0 and 1`);
 }
 
 /**
@@ -20,7 +21,7 @@ export function checkLevel(level: number, name = "level"): void {
  * Garwood, F. (1936) "Fiducial limits for the Poisson distribution", Biometrika 28, 437–442.
  */
 export function poissonInterval(count: number, level = 0.95): Interval {
-  if (!(Number.isInteger(count) && count >= 0)) throw new RangeError(`count=${count} should be an integer >= 0`);
+  if (!(Number.isInteger(count) && count >= 0)) throw new InputError(`count=${count} should be an integer >= 0`);
   checkLevel(level);
   const alpha = 1 - level;
   const lower = count === 0 ? 0 : inverseRegularizedGamma(count, alpha / 2);
@@ -46,8 +47,8 @@ export interface RateEstimate {
  * factor (the exposure is treated as known without error). Exposure 0 gives NaN rate and limits.
  */
 export function poissonRate(count: number, exposure: number, per = 1, level = 0.95): RateEstimate {
-  if (!(exposure >= 0) || !Number.isFinite(exposure)) throw new RangeError(`exposure=${exposure} should be a finite number >= 0`);
-  if (!(per > 0)) throw new RangeError(`per=${per} should be > 0`);
+  if (!(exposure >= 0) || !Number.isFinite(exposure)) throw new InputError(`exposure=${exposure} should be a finite number >= 0`);
+  if (!(per > 0)) throw new InputError(`per=${per} should be > 0`);
   const ci = poissonInterval(count, level);
   const f = exposure > 0 ? per / exposure : NaN;
   return { count, exposure, per, rate: count * f, lower: ci.lower * f, upper: ci.upper * f, level };

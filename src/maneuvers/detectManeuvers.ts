@@ -7,9 +7,11 @@ import { LAT_KEEP, LAT_LEFT, LAT_RIGHT, LATERAL, LON_DECELERATE, LON_KEEP, LONGI
 import { labelLongitudinal } from "./labelLongitudinal.js";
 import { findLaneChanges, debounceLanes, type FoundLaneChange } from "./findLaneChanges.js";
 import { fitLaneChangeProfile } from "./fitLaneChangeProfile.js";
+import { enforceLastingCrossings } from "./enforceLastingCrossings.js";
+import { LANE_CHANGE_PROFILES, profileShape, type LaneChangeProfile } from "./laneChangeShapes.js";
 import { fitPolynomial } from "./fitPolynomial.js";
 import { resolveManeuverOptions, type ManeuverOptions, type ResolvedManeuverOptions } from "./options.js";
-import type { ManeuverSegment, SmoothedMotion, TrackManeuvers } from "./types.js";
+import type { LaneChangeBoundaryMethod, ManeuverSegment, SmoothedMotion, TrackManeuvers } from "./types.js";
 
 /**
  * Basic maneuvers of one track.
@@ -19,10 +21,13 @@ import type { ManeuverSegment, SmoothedMotion, TrackManeuvers } from "./types.js
  * turn into false maneuvers; the track's own vx/vy/ax columns are not used.
  * - Longitudinal: the smoothed acceleration is labelled keep / accelerate / decelerate against
  *   ±keepAccel with a hysteresis band, then phases shorter than minLongitudinalS are merged away.
- * - Lateral: a lane change is a lasting change of the lane index (marking touches shorter than
- *   minLaneHoldS are removed first); it starts and ends where the lateral speed towards the new lane
- *   falls back below `lateralSpeed` on either side of the crossing. A drift towards a marking and
- *   back never changes the lane, so it is no lane change.
+ * - Lateral: a lane change is a lasting crossing of a lane marking (marking touches shorter than
+ *   minLaneHoldS are removed first, then, with crossingRule "lasting", episodes that get less than
+ *   minExcursion past the marking or stay less than minDwellS before coming back); every crossing
+ *   is its own lane change, also when two follow without a pause. Its movement spans the samples
+ *   where the lateral speed towards the new lane exceeds `lateralSpeed`; with boundary "auto" the
+ *   start and end then come from whichever of three profile shapes fits the positions best. A lane
+ *   change cut by the start or end of the run is flagged "partial".
  * Runs shorter than minJudgeS are labelled keep / lane-keep and reported in `warnings`.
  */
 export function detectManeuvers(track: Track, options: ManeuverOptions = {}): TrackManeuvers {
@@ -55,12 +60,28 @@ export function detectWithResolved(track: Track, o: ResolvedManeuverOptions): Tr
     }
     holdEdges(motion.ax, s, e, windowSamples(o.accelWindowS, dt, o.order));
     debounceLanes(lane, s, e, Math.max(1, Math.round(o.minLaneHoldS * perS)));
+    if (o.crossingRule === "lasting" && o.laneMarkings)
+      enforceLastingCrossings(lane, track.t, motion.y, motion.vy, s, e, {
+        markings: o.laneMarkings,
+        minExcursion: o.minExcursion,
+        minDwellSamples: Math.max(1, Math.round(o.minDwellS * perS)),
+        minCrossingSpeed: o.minCrossingSpeed,
+      });
     labelLongitudinal(motion.ax, s, e, o.keepAccel, o.keepAccel - o.hysteresis, Math.round(o.minLongitudinalS * perS), longitudinal);
     const changes = findLaneChanges(lane, motion.vy, s, e, o.lateralSpeed, warnings, track.id);
-    if (o.boundary === "profile") for (const lc of changes) refineByProfile(track, lc);
+    const accepted: Array<{ lc: FoundLaneChange; method: LaneChangeBoundaryMethod; partial: boolean }> = [];
     for (const lc of changes) {
+      // Cut by the run's start or end (the movement still under way there): its true extent is
+      // unknown, that side stays at the run's edge and the duration is not judged.
+      const cutStart = lc.start <= s;
+      const cutEnd = lc.end >= e - 1;
+      // A profile fitted to half a movement is ill-posed: partial lane changes keep the threshold.
+      const method = o.boundary === "threshold" || cutStart || cutEnd ? "threshold" : refineByProfile(track, lc, o.boundary === "profile" ? ["minimum-jerk"] : LANE_CHANGE_PROFILES, o.boundary === "profile" ? 0.3 : 1.5);
+      if (cutStart) lc.start = s;
+      if (cutEnd) lc.end = e - 1;
+      const partial = cutStart || cutEnd;
       const duration = track.t[lc.end]! - track.t[lc.start]!;
-      const outside = duration < o.minLaneChangeS ? "too-short" : duration > o.maxLaneChangeS ? "too-long" : undefined;
+      const outside = partial ? undefined : duration < o.minLaneChangeS ? "too-short" : duration > o.maxLaneChangeS ? "too-long" : undefined;
       if (outside && o.outOfRange === "reject") {
         warnings.push(
           `track ${track.id}: lane change ${lc.from}→${lc.to} at t=${track.t[lc.cross]!.toFixed(2)} s rejected: duration ${duration.toFixed(2)} s outside [${o.minLaneChangeS}, ${o.maxLaneChangeS}] s`,
@@ -69,13 +90,19 @@ export function detectWithResolved(track: Track, o: ResolvedManeuverOptions): Tr
       }
       lateral.fill(lc.to > lc.from ? LAT_LEFT : LAT_RIGHT, lc.start, lc.end + 1);
       lc.flag = outside;
+      accepted.push({ lc, method, partial });
     }
     pushSegments(track, o, motion, longitudinal, "longitudinal", s, e, segments);
-    pushSegments(track, o, motion, lateral, "lateral", s, e, segments);
-    for (const lc of changes) {
-      const seg = segments.find((g) => g.axis === "lateral" && g.startFrame === lc.start && g.maneuver !== "lane-keep");
-      if (!seg) continue;
+    // Lateral segments: one per accepted lane change (two changes without a pause between them stay
+    // two segments), lane-keep segments fill the rest of the run.
+    let next = s;
+    for (const { lc, method, partial } of accepted) {
+      if (lc.start > next) pushSegments(track, o, motion, lateral, "lateral", next, lc.start, segments, s, e);
+      pushSegments(track, o, motion, lateral, "lateral", lc.start, lc.end + 1, segments, s, e);
+      next = lc.end + 1;
+      const seg = segments[segments.length - 1]!;
       if (lc.flag) seg.flags.push(lc.flag);
+      if (partial) seg.flags.push("partial");
       const ts = track.t[lc.start]!;
       const dur = Math.max(track.t[lc.end]! - ts, 1e-9);
       const tau = new Float64Array(lc.end - lc.start + 1);
@@ -97,19 +124,28 @@ export function detectWithResolved(track: Track, o: ResolvedManeuverOptions): Tr
         peakLateralSpeed: peak,
         poly: fit.coefficients,
         polyResidual: fit.rms,
+        boundaryMethod: method,
+        partial,
       };
     }
+    if (next < e) pushSegments(track, o, motion, lateral, "lateral", next, e, segments, s, e);
   }
   segments.sort((a, b) => a.startFrame - b.startFrame || (a.axis < b.axis ? -1 : a.axis > b.axis ? 1 : 0));
   return { trackId: track.id, longitudinal, lateral, lane, motion, segments, warnings };
 }
 
 /**
- * Replace threshold boundaries by those of a fitted minimum-jerk profile (see fitLaneChangeProfile)
- * when the fit is plausible: the crossing lies inside it, it moves the vehicle by at least 1 m
- * towards the new lane, and it explains the positions to within 0.5 m RMS.
+ * Replace threshold boundaries by those of the lateral profiles that fit (see
+ * fitLaneChangeProfile): each shape in `shapes` is fitted, implausible fits are dropped (the crossing
+ * outside it, less than 1 m towards the new lane, or more than 0.5 m RMS), and start and end are the
+ * likelihood-weighted mean of the remaining fits' onsets and settling times; the method reported is
+ * the shape with the smallest residual. All shapes have the same free parameters (t0, t1, offset,
+ * drift, displacement), so their residuals compare directly. `slack` (s) is how far inside the
+ * threshold boundaries the onset and settling may lie: a speed threshold on a smoothed ramp with
+ * sharp corners marks the start early and the end late (by up to half the smoothing window), on a
+ * smooth profile late and early. Returns the method used ("threshold" when no fit is plausible).
  */
-function refineByProfile(track: Track, lc: FoundLaneChange): void {
+function refineByProfile(track: Track, lc: FoundLaneChange, shapes: readonly LaneChangeProfile[], slack: number): LaneChangeBoundaryMethod {
   const t = track.t;
   const pad = 3.5; // s: the threshold boundaries lag by up to about 2 s on a 14 s lane change
   const tS = t[lc.start]!;
@@ -119,17 +155,45 @@ function refineByProfile(track: Track, lc: FoundLaneChange): void {
   let hi = lc.end;
   while (hi < lc.hi && t[hi + 1]! <= tE + pad) hi++;
   const tc = t[lc.cross]!;
-  const fit = fitLaneChangeProfile(
-    t,
-    track.y,
-    lo,
-    hi,
-    [Math.max(t[lo]!, tS - 3), Math.min(tc, tS + 0.3)],
-    [Math.max(tc, tE - 0.3), Math.min(t[hi]!, tE + 3)],
-    0.5,
-  );
   const dir = lc.to > lc.from ? 1 : -1;
-  if (!fit || !(fit.t0 < tc && fit.t1 >= tc) || !(dir * fit.displacement >= 1) || !(fit.rms <= 0.5)) return;
+  const fits: Array<{ t0: number; t1: number; sse: number; shape: LaneChangeProfile }> = [];
+  const n = hi - lo + 1;
+  for (const shape of shapes) {
+    const fit = fitLaneChangeProfile(
+      t,
+      track.y,
+      lo,
+      hi,
+      [Math.max(t[lo]!, tS - 3), Math.min(tc, tS + slack)],
+      [Math.max(tc, tE - slack), Math.min(t[hi]!, tE + 3)],
+      0.5,
+      profileShape(shape),
+    );
+    if (!fit || !(fit.t0 < tc && fit.t1 >= tc) || !(dir * fit.displacement >= 1) || !(fit.rms <= 0.5)) continue;
+    fits.push({ t0: fit.t0, t1: fit.t1, sse: fit.rms * fit.rms * n, shape });
+  }
+  if (fits.length === 0) return "threshold";
+  // Shapes the data cannot tell apart share the boundaries: each fit is weighted by its likelihood
+  // under Gaussian residuals, exp(−(SSE − SSE_min) / 2σ̂²), σ̂² = SSE_min / (n − 5) (Bayesian model
+  // averaging with equal priors; Hoeting et al., Statistical Science 14, 1999). At 0.1 m noise the
+  // minimum-jerk and sinusoidal shapes differ by only 1–3 σ² in SSE while their onsets differ by
+  // about 0.08·T, so neither is trusted alone; a ramp differs by 30+ σ² and wins outright.
+  let minSse = Infinity;
+  let best = fits[0]!;
+  for (const f of fits)
+    if (f.sse < minSse) {
+      minSse = f.sse;
+      best = f;
+    }
+  const sigma2 = Math.max(minSse / Math.max(1, n - 5), 1e-12);
+  let w = 0, t0 = 0, t1 = 0;
+  for (const f of fits) {
+    const wk = Math.exp(-(f.sse - minSse) / (2 * sigma2));
+    w += wk;
+    t0 += wk * f.t0;
+    t1 += wk * f.t1;
+  }
+  const fit = { t0: t0 / w, t1: t1 / w };
   let start = lc.start;
   while (start > lo && t[start - 1]! >= fit.t0) start--;
   while (start < lc.cross && t[start]! < fit.t0) start++;
@@ -138,6 +202,7 @@ function refineByProfile(track: Track, lc: FoundLaneChange): void {
   while (end > lc.cross && t[end]! > fit.t1) end--;
   lc.start = Math.min(start, lc.cross);
   lc.end = Math.max(end, lc.cross);
+  return best.shape;
 }
 
 /**
@@ -166,7 +231,7 @@ function crossingTime(t: Float64Array, y: Float64Array, c: number, markings: num
   return t[c - 1]! + f * (t[c]! - t[c - 1]!);
 }
 
-/** Segments of one axis over the run [s, e): one per run of equal labels. */
+/** Segments of one axis over [s, e) of the run [runStart, runEnd): one per stretch of equal labels. */
 function pushSegments(
   track: Track,
   o: ResolvedManeuverOptions,
@@ -176,6 +241,8 @@ function pushSegments(
   s: number,
   e: number,
   out: ManeuverSegment[],
+  runStart = s,
+  runEnd = e,
 ): void {
   let a = s;
   while (a < e) {
@@ -192,9 +259,9 @@ function pushSegments(
     const flags: string[] = [];
     const keep = axis === "longitudinal" ? LON_KEEP : LAT_KEEP;
     // A maneuver cut by the end of the observed run has an unknown true extent.
-    if (a === s && code !== keep) flags.push("at-track-start");
-    if (b === e - 1 && code !== keep) flags.push("at-track-end");
-    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.harshDecel) flags.push("harsh-braking");
+    if (a === runStart && code !== keep) flags.push("at-track-start");
+    if (b === runEnd - 1 && code !== keep) flags.push("at-track-end");
+    if (axis === "longitudinal" && code === LON_DECELERATE && -peak > o.decelAbove) flags.push("harsh-braking");
     out.push({
       axis,
       maneuver: axis === "longitudinal" ? LONGITUDINAL[code]! : LATERAL[code]!,

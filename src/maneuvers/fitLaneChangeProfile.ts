@@ -1,7 +1,11 @@
+import { minimumJerkShape } from "./laneChangeShapes.js";
+
+export { minimumJerkShape };
+
 /**
- * Boundaries of a lane change from a fit of the minimum-jerk lateral profile
- * s(τ) = 10τ³ − 15τ⁴ + 6τ⁵ (Flash & Hogan 1985; the usual model of a lane change's lateral
- * movement between two rest states) to the measured lateral positions:
+ * Boundaries of a lane change from a fit of a normalised lateral profile s (by default the
+ * minimum-jerk s(τ) = 10τ³ − 15τ⁴ + 6τ⁵, Flash & Hogan 1985; see laneChangeShapes.ts for the others)
+ * to the measured lateral positions:
  *
  *   y(t) ≈ a + b·(t − t̄) + D·s((t − t0) / (t1 − t0)),  s = 0 before t0 and 1 after t1.
  *
@@ -22,13 +26,6 @@ export interface ProfileFit {
   rms: number;
 }
 
-export function minimumJerkShape(tau: number): number {
-  if (tau <= 0) return 0;
-  if (tau >= 1) return 1;
-  const t3 = tau * tau * tau;
-  return t3 * (10 + tau * (-15 + 6 * tau));
-}
-
 /**
  * Fit over samples lo..hi (inclusive) of (t, y). t0 is searched in [t0Lo, t0Hi], t1 in [t1Lo, t1Hi]
  * with t1 − t0 >= minDuration. Returns undefined when there are too few samples to fit.
@@ -41,17 +38,21 @@ export function fitLaneChangeProfile(
   t0Range: [number, number],
   t1Range: [number, number],
   minDuration: number,
+  shape: (tau: number) => number = minimumJerkShape,
 ): ProfileFit | undefined {
   const n = hi - lo + 1;
   if (n < 8) return undefined;
   let tm = 0;
   for (let i = lo; i <= hi; i++) tm += t[i]!;
   tm /= n;
+  // Prefix sums of u = t − tm, u², y, u·y, y² over lo..hi: outside (t0, t1) the shape is 0 or 1,
+  // so only the samples of the movement itself need a pass per candidate pair.
+  const P = prefixSums(t, y, lo, hi, tm);
   let best: ProfileFit | undefined;
   let bestSse = Infinity;
   const tryPair = (t0: number, t1: number): void => {
     if (!(t1 - t0 >= minDuration)) return;
-    const r = solve(t, y, lo, hi, tm, t0, t1);
+    const r = solve(t, y, lo, hi, tm, t0, t1, shape, P);
     if (r && r.sse < bestSse) {
       bestSse = r.sse;
       best = { t0, t1, offset: r.a, drift: r.b, displacement: r.d, rms: Math.sqrt(r.sse / n) };
@@ -77,6 +78,43 @@ export function fitLaneChangeProfile(
   return best;
 }
 
+interface Prefix {
+  lo: number;
+  /** Cumulative sums over lo..lo+k−1 (length n + 1). */
+  u: Float64Array;
+  y: Float64Array;
+  uu: Float64Array;
+  uy: Float64Array;
+  yy: Float64Array;
+}
+
+function prefixSums(t: Float64Array, y: Float64Array, lo: number, hi: number, tm: number): Prefix {
+  const n = hi - lo + 1;
+  const P: Prefix = { lo, u: new Float64Array(n + 1), y: new Float64Array(n + 1), uu: new Float64Array(n + 1), uy: new Float64Array(n + 1), yy: new Float64Array(n + 1) };
+  for (let k = 0; k < n; k++) {
+    const u = t[lo + k]! - tm;
+    const v = y[lo + k]!;
+    P.u[k + 1] = P.u[k]! + u;
+    P.y[k + 1] = P.y[k]! + v;
+    P.uu[k + 1] = P.uu[k]! + u * u;
+    P.uy[k + 1] = P.uy[k]! + u * v;
+    P.yy[k + 1] = P.yy[k]! + v * v;
+  }
+  return P;
+}
+
+/** First index in [lo, hi + 1] with t[i] > x (t ascending). */
+function firstAbove(t: Float64Array, lo: number, hi: number, x: number): number {
+  let a = lo;
+  let b = hi + 1;
+  while (a < b) {
+    const m = (a + b) >> 1;
+    if (t[m]! > x) b = m;
+    else a = m + 1;
+  }
+  return a;
+}
+
 /** Least squares of y on [1, t − tm, s(τ)] over lo..hi; the residual sum of squares. */
 function solve(
   t: Float64Array,
@@ -86,23 +124,25 @@ function solve(
   tm: number,
   t0: number,
   t1: number,
+  shape: (tau: number) => number,
+  P: Prefix,
 ): { a: number; b: number; d: number; sse: number } | undefined {
-  let n = 0, st = 0, ss = 0, stt = 0, sts = 0, sss = 0, sy = 0, sty = 0, ssy = 0, syy = 0;
+  const n = hi - lo + 1;
+  const st = P.u[n]!, stt = P.uu[n]!, sy = P.y[n]!, sty = P.uy[n]!, syy = P.yy[n]!;
+  // Samples before t0 have s = 0, from t1 on s = 1; only (t0, t1) is summed sample by sample.
+  const i0 = firstAbove(t, lo, hi, t0);
+  const i1 = Math.max(i0, firstAbove(t, lo, hi, t1 - 1e-12));
+  const after = hi + 1 - i1;
+  let ss = after, sts = P.u[n]! - P.u[i1 - lo]!, sss = after, ssy = P.y[n]! - P.y[i1 - lo]!;
   const inv = 1 / (t1 - t0);
-  for (let i = lo; i <= hi; i++) {
+  for (let i = i0; i < i1; i++) {
     const u = t[i]! - tm;
-    const s = minimumJerkShape((t[i]! - t0) * inv);
+    const sh = shape((t[i]! - t0) * inv);
     const v = y[i]!;
-    n++;
-    st += u;
-    ss += s;
-    stt += u * u;
-    sts += u * s;
-    sss += s * s;
-    sy += v;
-    sty += u * v;
-    ssy += s * v;
-    syy += v * v;
+    ss += sh;
+    sts += u * sh;
+    sss += sh * sh;
+    ssy += sh * v;
   }
   // Normal equations G β = r, G symmetric 3×3, solved by Cramer's rule.
   const g00 = n, g01 = st, g02 = ss, g11 = stt, g12 = sts, g22 = sss;

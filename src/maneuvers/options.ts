@@ -1,3 +1,4 @@
+import { renameDeprecated } from "../core/aliases.js";
 import { InputError } from "../core/errors.js";
 
 /** Options of {@link detectManeuvers}; every field has a documented default (docs/maneuvers.md). */
@@ -28,7 +29,9 @@ export interface ManeuverOptions {
    * then shorter keep phases between two phases of the same kind take that kind. Default 1.0.
    */
   minLongitudinalS?: number;
-  /** Braking harder than this is flagged "harsh-braking" (m/s², positive). Default 3.0 (common practice). */
+  /** Braking harder than this is flagged "harsh-braking" (m/s², positive). Default 3.0 (common practice); the same name as the scene's and the plan's. */
+  decelAbove?: number;
+  /** @deprecated use decelAbove (accepted for one version). */
   harshDecel?: number;
   /**
    * A lane change starts and ends where the lateral speed towards the new lane falls back below this
@@ -37,12 +40,29 @@ export interface ManeuverOptions {
   lateralSpeed?: number;
   /**
    * How the start and end of a lane change are placed. "threshold": where the lateral speed towards
-   * the new lane falls below `lateralSpeed`. "profile" (default): those threshold boundaries seed a
-   * least-squares fit of the minimum-jerk lateral profile to the positions, whose onset and settling
-   * times become the boundaries (the threshold marks them late/early by up to a second on slow lane
-   * changes); when the fit is implausible the threshold boundaries are kept.
+   * the new lane falls below `lateralSpeed`. "auto" (default): those threshold boundaries seed
+   * least-squares fits of three lateral profiles (minimum-jerk, constant lateral speed, sinusoidal;
+   * src/maneuvers/laneChangeShapes.ts) to the positions; the plausible fit with the smallest residual
+   * gives the onset and settling times. "profile": the minimum-jerk fit only (the behaviour before
+   * issue 11; it stretches a constant-speed ramp of duration T by about 0.44·T on each side). When
+   * no fit is plausible the threshold boundaries are kept; `laneChange.boundaryMethod` says which.
    */
-  boundary?: "profile" | "threshold";
+  boundary?: "auto" | "profile" | "threshold";
+  /**
+   * Which marking crossings count. "lasting" (default): an episode in the new lane must take the
+   * centre at least `minExcursion` past the marking, and when the vehicle comes back across the same
+   * marking it must have stayed `minDwellS`; an episode cut by the run's start or end with less
+   * excursion counts only when the vehicle moves across at `minCrossingSpeed` or more on average over it. "touch": only
+   * the `minLaneHoldS` rule (the behaviour before issue 11: a vehicle riding on a marking gives a
+   * lane change at every flip that outlasts it).
+   */
+  crossingRule?: "lasting" | "touch";
+  /** Lasting crossing: minimum distance of the smoothed centre past the crossed marking (m). Default 0.5. */
+  minExcursion?: number;
+  /** Lasting crossing: minimum stay in the new lane before coming back across the same marking (s). Default 1.0. */
+  minDwellS?: number;
+  /** Lasting crossing: mean lateral speed across the marking that keeps an episode cut by the run's start or end (m/s). Default 0.2. */
+  minCrossingSpeed?: number;
   /** Lane changes shorter than this are flagged or rejected (s). Default 1.0. */
   minLaneChangeS?: number;
   /** Lane changes longer than this are flagged or rejected (s). Default 12. */
@@ -67,7 +87,7 @@ export interface ManeuverOptions {
   minJudgeS?: number;
 }
 
-type Defaults = Required<Omit<ManeuverOptions, "laneMarkings">>;
+type Defaults = Required<Omit<ManeuverOptions, "laneMarkings" | "harshDecel">>;
 export type ResolvedManeuverOptions = Defaults & { laneMarkings?: number[] };
 
 export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
@@ -77,9 +97,13 @@ export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
   keepAccel: 0.25,
   hysteresis: 0.1,
   minLongitudinalS: 1.0,
-  harshDecel: 3.0,
+  decelAbove: 3.0,
   lateralSpeed: 0.1,
-  boundary: "profile",
+  boundary: "auto",
+  crossingRule: "lasting",
+  minExcursion: 0.5,
+  minDwellS: 1.0,
+  minCrossingSpeed: 0.2,
   minLaneChangeS: 1.0,
   maxLaneChangeS: 12,
   outOfRange: "flag",
@@ -92,13 +116,13 @@ export const MANEUVER_DEFAULTS: Readonly<Defaults> = Object.freeze({
 /** Defaults resolved and every option validated once, at the boundary. */
 export function resolveManeuverOptions(options: ManeuverOptions = {}): ResolvedManeuverOptions {
   const o: ResolvedManeuverOptions = { ...MANEUVER_DEFAULTS };
-  for (const [k, v] of Object.entries(options)) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
+  for (const [k, v] of Object.entries(renameDeprecated(options, { harshDecel: "decelAbove" }, "maneuver options"))) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
   const positive = (name: keyof Defaults): void => {
     const v = o[name] as number;
     if (typeof v !== "number" || !(v > 0) || !Number.isFinite(v))
       throw new InputError(`${name}=${String(v)} should be a finite number > 0`);
   };
-  for (const k of ["windowS", "accelWindowS", "keepAccel", "minLongitudinalS", "harshDecel", "lateralSpeed", "minLaneChangeS", "maxLaneChangeS", "minLaneHoldS", "minJudgeS"] as const)
+  for (const k of ["windowS", "accelWindowS", "keepAccel", "minLongitudinalS", "decelAbove", "lateralSpeed", "minLaneChangeS", "maxLaneChangeS", "minLaneHoldS", "minJudgeS", "minExcursion", "minDwellS", "minCrossingSpeed"] as const)
     positive(k);
   if (!(o.hysteresis >= 0 && o.hysteresis <= o.keepAccel))
     throw new InputError(`hysteresis=${o.hysteresis} should be >= 0 and <= keepAccel=${o.keepAccel}`);
@@ -107,8 +131,10 @@ export function resolveManeuverOptions(options: ManeuverOptions = {}): ResolvedM
   if (!Number.isInteger(o.order) || o.order < 2 || o.order > 6) throw new InputError(`order=${o.order} should be an integer between 2 and 6`);
   if (!Number.isInteger(o.polyDegree) || o.polyDegree < 1 || o.polyDegree > 7)
     throw new InputError(`polyDegree=${o.polyDegree} should be an integer between 1 and 7`);
-  if (o.boundary !== "profile" && o.boundary !== "threshold")
-    throw new InputError(`boundary=${JSON.stringify(o.boundary)} should be "profile" or "threshold"`);
+  if (o.boundary !== "auto" && o.boundary !== "profile" && o.boundary !== "threshold")
+    throw new InputError(`boundary=${JSON.stringify(o.boundary)} should be "auto", "profile" or "threshold"`);
+  if (o.crossingRule !== "lasting" && o.crossingRule !== "touch")
+    throw new InputError(`crossingRule=${JSON.stringify(o.crossingRule)} should be "lasting" or "touch"`);
   if (o.outOfRange !== "flag" && o.outOfRange !== "reject")
     throw new InputError(`outOfRange=${JSON.stringify(o.outOfRange)} should be "flag" or "reject"`);
   if (!(o.maxGapFactor >= 1)) throw new InputError(`maxGapFactor=${o.maxGapFactor} should be a number >= 1`);

@@ -1,4 +1,8 @@
 import type { LateralManeuver, LongitudinalManeuver } from "./labels.js";
+import type { LaneChangeProfile } from "./laneChangeShapes.js";
+
+/** How a lane change's start and end were placed: a fitted profile shape, or the lateral-speed threshold. */
+export type LaneChangeBoundaryMethod = LaneChangeProfile | "threshold";
 
 /** Shape of one lane change's lateral movement. */
 export interface LaneChangeShape {
@@ -18,6 +22,13 @@ export interface LaneChangeShape {
   poly: number[];
   /** Root-mean-square residual of that fit (m). */
   polyResidual: number;
+  /** Which profile shape (or the threshold) placed start and end (docs/maneuvers.md, "Boundaries"). */
+  boundaryMethod: LaneChangeBoundaryMethod;
+  /**
+   * The movement is cut by the start or end of the observed run: the crossing was observed, start or
+   * end are where the observation stops (the segment also carries the flag "partial").
+   */
+  partial: boolean;
 }
 
 /** One basic maneuver of one track: a contiguous run of samples with the same label. */
@@ -42,7 +53,8 @@ export interface ManeuverSegment {
   /**
    * Remarks: "too-short" / "too-long" (lane change outside the duration bounds), "harsh-braking",
    * "at-track-start" / "at-track-end" (the segment touches the end of the observed run, so its true
-   * extent is unknown).
+   * extent is unknown), "partial" (a lane change cut by the start or end of the run; its duration is
+   * not judged).
    */
   flags: string[];
 }

@@ -1,10 +1,12 @@
 import type { Progress } from "../core/progress.js";
 import { detectAllManeuvers } from "../maneuvers/detectAllManeuvers.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
+import type { RecordingConditions } from "../recording/conditions.js";
 import type { Recording } from "../recording/types.js";
 import { buildScenarios } from "../scenario/buildScenarios.js";
 import type { ScenarioSet } from "../scenario/types.js";
 import { buildScenes } from "../scene/buildScenes.js";
+import { measureScenarioParameters } from "../logical/measureScenarioParameters.js";
 import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from "./options.js";
 
 /** What a recording contributed, for reports and provenance. */
@@ -13,6 +15,8 @@ export interface RecordingSummary {
   source: string;
   checksum: string;
   road: string;
+  /** The recording's conditions as stated in its road description ({} when none). */
+  conditions: RecordingConditions;
   lanes: number;
   frameRate: number;
   tracks: number;
@@ -56,6 +60,8 @@ export function extractRecording(
   const m = timed("maneuvers", () => detectAllManeuvers(rec, o.maneuvers, progress));
   const scenes = timed("neighbours", () => buildScenes(rec, m, o.scene, progress));
   const set = timed("scenarios", () => buildScenarios(rec, m, scenes, o.scenario, progress));
+  // Class and parameters of every scenario, while the tracks, maneuvers and scenes are at hand.
+  timed("parameters", () => measureScenarioParameters(rec, m, scenes, set, o.measure));
   let rows = 0;
   for (const t of rec.tracks) rows += t.t.length;
   let km = 0;
@@ -77,6 +83,7 @@ export function extractRecording(
     source: rec.source,
     checksum: rec.checksum,
     road: rec.road.name,
+    conditions: { ...(rec.road.conditions ?? {}) },
     lanes: rec.road.laneMarkings.length - 1,
     frameRate: rec.road.frameRate,
     tracks: rec.tracks.length,

@@ -7,5 +7,5 @@ export type { PipelineResult, ClusteredCatalogue } from "./planCatalogue.js";
 export { resolvePipelineOptions, PIPELINE_DEFAULTS } from "./options.js";
 export type { PipelineOptions, ResolvedPipelineOptions, MapMethod } from "./options.js";
 export { mergeScenarioSets } from "./mergeScenarioSets.js";
-export { writeOutputs } from "./writeOutputs.js";
+export { writeOutputs, writeOutputFolder } from "./writeOutputs.js";
 export type { WriteOutputsOptions } from "./writeOutputs.js";

@@ -1,8 +1,11 @@
+import { DEFAULTS } from "../core/defaults.js";
 import { InputError } from "../core/errors.js";
 import { CLUSTERING_DEFAULTS, resolveClusteringOptions, type ClusteringOptions, type ResolvedClusteringOptions } from "../cluster/fitClustering.js";
 import type { EmbedOptions } from "../embed/features.js";
 import type { ManeuverOptions } from "../maneuvers/options.js";
 import type { TestPlanOptions } from "../plan/options.js";
+import type { LogicalPlanOptions } from "../plan/buildPlan.js";
+import type { MeasureOptions } from "../logical/options.js";
 import type { ScenarioOptions } from "../scenario/options.js";
 import type { SceneOptions } from "../scene/options.js";
 
@@ -34,7 +37,12 @@ export interface PipelineOptions {
   map?: MapMethod;
   /** Scenario weights in clustering and shares: kilometres (default) or hours. */
   weightBy?: "km" | "hours";
+  /** plan.budget counts concrete test cases (the logical plan); the other plan options shape the thresholds and the exploration view. */
   plan?: TestPlanOptions;
+  /** Classification and parameter measurement (src/logical/). */
+  measure?: MeasureOptions;
+  /** Logical scenarios, critical events and the allocation of concrete test cases. */
+  logical?: LogicalPlanOptions;
 }
 
 export interface ResolvedPipelineOptions {
@@ -50,16 +58,18 @@ export interface ResolvedPipelineOptions {
   map: MapMethod;
   weightBy: "km" | "hours";
   plan: TestPlanOptions;
+  measure: MeasureOptions;
+  logical: LogicalPlanOptions;
 }
 
 export const PIPELINE_DEFAULTS = {
-  seed: 1,
-  // The clustering stage's own defaults: one table for the stage and the pipeline.
+  seed: DEFAULTS.seed,
+  // The clustering stage's own defaults (which come from DEFAULTS): one table for the stage and the pipeline.
   kRange: CLUSTERING_DEFAULTS.kRange,
   nInit: CLUSTERING_DEFAULTS.nInit,
   dbscanVariance: CLUSTERING_DEFAULTS.dbscanVariance,
   dbscanMaxComponents: CLUSTERING_DEFAULTS.dbscanMaxComponents,
-  map: "umap" as MapMethod,
+  map: DEFAULTS.map as MapMethod,
   weightBy: "km" as const,
 };
 
@@ -89,5 +99,7 @@ export function resolvePipelineOptions(o: PipelineOptions = {}): ResolvedPipelin
     map,
     weightBy,
     plan: { weightBy, ...(o.plan ?? {}) },
+    measure: o.measure ?? {},
+    logical: o.logical ?? {},
   };
 }

@@ -13,9 +13,13 @@ import { map2d } from "../embed/map2d.js";
 import { scenarioWeights } from "../exposure/sampleWeights.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
 import { buildTestPlan } from "../plan/buildTestPlan.js";
-import type { TestPlan } from "../plan/types.js";
+import { buildPlanDetailed } from "../plan/buildPlan.js";
+import type { Plan } from "../plan/logicalTypes.js";
+import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
+import { logicalModelToJSON } from "../logical/assignLogicalScenarios.js";
 import { scenarioTypeKeys } from "../coverage/typeKey.js";
 import type { ScenarioSet } from "../scenario/types.js";
+import type { RecordingConditions } from "../recording/conditions.js";
 import type { RecordingSummary } from "./extractRecording.js";
 import { mergeScenarioSets } from "./mergeScenarioSets.js";
 import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from "./options.js";
@@ -42,7 +46,11 @@ export interface PipelineResult {
   model: ClusteringModel;
   typeKeys: string[];
   map: { coords: Matrix; method: string; fittedOn: number; warnings: string[] };
-  plan: TestPlan;
+  /** The plan of logical scenarios (schema 2.0.0); plan.exploration holds the global cluster view. */
+  plan: Plan;
+  /** Logical scenario id per scenario, and the fitted per-class model (standardization, representatives). */
+  logicalScenarioOf: string[];
+  logicalModel: LogicalModel;
   /** Seconds per stage. */
   timings: Record<string, number>;
   warnings: string[];
@@ -122,14 +130,19 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
 
   const inputChecksums: Record<string, string> = {};
   for (const r of c.summaries) inputChecksums[r.source] = r.checksum;
+  // Conditions go into the provenance only when some recording states them, so that plans of
+  // recordings without conditions keep their bytes.
+  const recordingConditions: Record<string, RecordingConditions> = {};
+  for (const r of c.summaries) if (r.conditions && Object.keys(r.conditions).length > 0) recordingConditions[r.id] = r.conditions;
   const extraction = {
     maneuvers: o.maneuvers,
     scene: o.scene,
     scenario: scenarios.options ?? o.scenario,
     embedding: o.embedding,
+    measure: o.measure,
     weightBy: o.weightBy,
   };
-  const plan = timed("test plan", () =>
+  const exploration = timed("test plan", () =>
     buildTestPlan(
       {
         scenarios: scenarios.scenarios,
@@ -137,7 +150,7 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
         medoids: med.indices,
         embedding: X,
         typeKeys,
-        clusterMethod: `k-means (k = ${k}${sweep ? ", chosen by silhouette" : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
+        clusterMethod: `k-means (k = ${k}${sweep ? `, chosen by silhouette${sampledSweepNote(sweep, k, n)}` : ""})${db ? ` with DBSCAN noise (eps ${db.eps.toPrecision(4)}, minPts ${db.minPts}, ${db.components} principal components) as rare scenarios` : ""}`,
         provenance: {
           seed: o.seed,
           inputChecksums,
@@ -154,13 +167,23 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
             dbscan: db ? { eps: db.eps, minPts: db.minPts, components: db.components } : false,
             map: o.map,
             weightBy: o.weightBy,
+            ...(Object.keys(recordingConditions).length > 0 ? { recordingConditions } : {}),
           },
         },
         progress,
       },
-      o.plan,
+      { ...o.plan, budget: undefined },
     ),
   );
+  // plan.budget counts concrete test cases; the exploration view keeps every cluster's medoid.
+  const detailed = timed("logical scenarios", () =>
+    buildPlanDetailed({ scenarios: scenarios.scenarios, exploration, rng: rng.fork("plan") }, o.plan, { ...o.logical, budget: o.logical.budget ?? o.plan.budget }),
+  );
+  const plan = detailed.plan;
+  // Every warning of the run goes into plan.json, so that it and the report list the same: the
+  // recordings', the stages' (clustering, 2-D map), then the plan's own.
+  plan.warnings = [...c.summaries.flatMap((s) => s.warnings.map((w) => `${s.id}: ${w}`)), ...warnings, ...map.warnings.map((w) => `2-D map: ${w}`), ...plan.warnings];
+  warnings.length = 0;
   warnings.push(...plan.warnings);
   return {
     options: o,
@@ -175,10 +198,13 @@ export function planFromClustering(c: ClusteredCatalogue, options: PipelineOptio
     dbscan: db,
     labels,
     medoids: med,
-    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown> },
+    // The per-class model of the logical scenarios rides in model.json under its `logical` key.
+    model: { ...cl.model, extraction: JSON.parse(JSON.stringify(extraction)) as Record<string, unknown>, logical: JSON.parse(logicalModelToJSON(detailed.model)) as unknown },
     typeKeys,
     map,
     plan,
+    logicalScenarioOf: detailed.logicalScenarioOf,
+    logicalModel: detailed.model,
     timings,
     warnings,
   };
@@ -193,4 +219,16 @@ export function checkDistinctIds(recordings: readonly { id: string; source: stri
       throw new InputError(`two recordings have the id "${rec.id}" (${other} and ${rec.source}); scenario ids would collide — give each its own id (readRecording option id)`);
     seen.set(rec.id, rec.source);
   }
+}
+
+/**
+ * How a sampled k choice was measured, for the plan's method line: the silhouette sample, its
+ * standard error at the chosen k, and the sweep's fit sample. Empty when the sweep was exact, so
+ * small catalogues keep the plain line.
+ */
+function sampledSweepNote(sweep: SweepKResult, k: number, n: number): string {
+  if (sweep.silhouetteExact) return "";
+  const se = sweep.rows.find((r) => r.k === k)?.silhouetteSe ?? NaN;
+  const fits = sweep.fitSample < n ? `; sweep fits on a seeded sample of ${sweep.fitSample}` : "";
+  return ` on a seeded sample of ${sweep.silhouetteSample} of ${n} scenarios, standard error ${se.toFixed(3)}${fits}`;
 }

@@ -1,3 +1,4 @@
+import { checkRecordings } from "./checkRecordings.js";
 import { InputError } from "../core/errors.js";
 import type { Progress } from "../core/progress.js";
 import type { TrackManeuvers } from "../maneuvers/types.js";
@@ -17,6 +18,7 @@ export type { PipelineResult } from "./planCatalogue.js";
  * same order gets the same plan, byte for byte. Pure: no files are read or written here.
  */
 export function runPipeline(recordings: Recording[], options: PipelineOptions = {}, progress?: Progress): PipelineResult {
+  checkRecordings(recordings);
   const o = resolvePipelineOptions(options);
   if (recordings.length === 0) throw new InputError("runPipeline needs at least one recording");
   checkDistinctIds(recordings);

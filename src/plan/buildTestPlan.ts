@@ -47,6 +47,11 @@ export interface TestPlanInput {
     /** Options of the upstream stages (extraction, embedding, clustering). */
     upstream?: Record<string, unknown>;
   };
+  /**
+   * Warnings of the stages before the plan (reading, extraction, clustering), put first in
+   * plan.warnings so that plan.json and the report list every warning of the run, the same list.
+   */
+  upstreamWarnings?: readonly string[];
   progress?: Progress;
 }
 
@@ -106,7 +111,7 @@ export function buildTestPlan(input: TestPlanInput, options: TestPlanOptions = {
   const o: ResolvedTestPlanOptions = resolveTestPlanOptions(options);
   const { scenarios, labels, embedding, distances } = input;
   const progress = input.progress;
-  const warnings: string[] = [];
+  const warnings: string[] = [...(input.upstreamWarnings ?? [])];
   const step = (done: number, message: string): void => progress?.({ stage: "plan", done, total: 5, message });
   step(0, "exposure");
 

@@ -22,5 +22,9 @@ export { planSummary, composeSummary, PLAN_CAUTIONS, formatPercent, formatQuanti
 export { testPlanToJson } from "./planJson.js";
 export { testPlanToCsv, PLAN_CSV_COLUMNS } from "./planCsv.js";
 export { writeTestPlan } from "./writeTestPlan.js";
-export { openScenarioXml, writeOpenScenarioFiles } from "./openScenario.js";
-export type { OpenScenarioOptions, OpenScenarioResult } from "./openScenario.js";
+export { buildPlan, buildPlanDetailed, logicalSummary, testCaseId, DEFAULT_BUDGET } from "./buildPlan.js";
+export type { LogicalPlanOptions, PlanInput } from "./buildPlan.js";
+export { PLAN_V2_SCHEMA_VERSION } from "./logicalTypes.js";
+export type { Plan, LogicalScenario, ConcreteTestCase, ConcreteKind, CriticalAnchor, LogicalLeftOut, LogicalSelection, LogicalAccounting, ClassSummary, PlanCriticalEvent } from "./logicalTypes.js";
+export { planToCsv, logicalScenariosToCsv, CONCRETE_CSV_COLUMNS, LOGICAL_CSV_COLUMNS } from "./logicalCsv.js";
+export { planToJson, writePlan } from "./writePlan.js";

@@ -2,6 +2,7 @@
  * Turn a scanned table into validated tracks in the road frame: group rows by track, check each track,
  * convert units and direction, derive missing motion, assign lanes. Pure (no I/O).
  */
+import { totalmem } from "node:os";
 import { InputError } from "../core/errors.js";
 import type { Progress } from "../core/progress.js";
 import { throttleProgress } from "../core/progress.js";
@@ -11,6 +12,8 @@ import { splitAtGaps } from "../kinematics/splitAtGaps.js";
 import type { DeriveMotionOptions, Motion } from "../kinematics/deriveMotion.js";
 import type { TrackColumn } from "./columns.js";
 import { DEFAULT_SIZES, KIND_CODES, KIND_EMPTY } from "./kinds.js";
+import { PlausibilityChecker } from "./plausibility.js";
+import type { ResolvedPlausibility } from "./plausibility.js";
 import type { RawTable } from "./scanTable.js";
 import { toSI } from "./units.js";
 import type { Ratio, UnitFactors } from "./units.js";
@@ -30,6 +33,7 @@ export interface BuildOptions {
   lanes: LaneSource;
   sortWithinTracks: boolean;
   motion: DeriveMotionOptions;
+  plausibility: ResolvedPlausibility;
   progress?: Progress;
 }
 
@@ -108,6 +112,15 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
   const timeCol: TrackColumn = useFrame ? "frame" : "t";
   const tRaw = useFrame ? col.frame! : col.t!;
   const tRatio: Ratio = useFrame ? [1, frameRate] : u.time;
+  const plaus = new PlausibilityChecker(o.plausibility, {
+    file,
+    columns: { x: names.x, y: names.y, vx: names.vx, ax: names.ax, time: names[timeCol] },
+    laneMarkings: o.roadFrame.laneMarkings,
+    xRange: o.roadFrame.xRange,
+  });
+  plaus.frameRate(o.road.frameRate, "the road's frameRate", "frameRate");
+  if (useFrame && u.frameRate !== undefined) plaus.frameRate(u.frameRate, "units.frameRate");
+  guardFrameClock(tRaw, tRatio, o.road.frameRate, file);
 
   const tracks: Track[] = [];
   const problems: Problem[] = [];
@@ -189,6 +202,9 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
 
     // Motion: the file's columns where present and finite for the whole track, derived otherwise.
     let derived: Motion | undefined;
+    // Derived acceleration over a stretch shorter than its window is noise-dominated (warned about
+    // below): not evidence of an implausible acceleration.
+    let noisyAccel = false;
     const motion: Partial<Record<"vx" | "vy" | "ax" | "ay", Float64Array>> = {};
     for (const c of KINEMATIC) {
       const src = col[c];
@@ -228,7 +244,10 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
         );
         continue;
       }
-      if (motion.ax === derived.ax && hasShortRun(t, o.motion)) shortDerived++;
+      if (motion.ax === derived.ax && hasShortRun(t, o.motion)) {
+        shortDerived++;
+        noisyAccel = true;
+      }
     }
 
     // Lanes.
@@ -270,6 +289,7 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
       if (!(width > 0)) width = DEFAULT_SIZES[kind].width;
     }
 
+    plaus.track(id, t, x, y, motion as Required<typeof motion>, (k) => row[idx[k]!]!, noisyAccel);
     tracks.push({
       id,
       recording: o.recording,
@@ -294,10 +314,11 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
     const p = problems[0]!;
     const more = problems.length > 1 ? `; ${problems.length} tracks have problems in all` : "";
     throw new InputError(
-      `track ${p.trackId}: ${p.reason}${more}. Fix the file, or pass onBadTrack: "reject" to leave such tracks out (they are then listed in Recording.rejected)`,
+      `track ${p.trackId}: ${p.reason}${more}. ${/time goes backwards/.test(p.reason) ? `Sort each track's rows by time (CLI --sort-rows, API sortWithinTracks: true), fix the file, ` : "Fix the file, "}or leave such tracks out (CLI --on-bad-track reject, API onBadTrack: "reject"; they are then listed as rejected)`,
       { file, row: p.row, column: p.column, value: p.value },
     );
   }
+  warnings.push(...plaus.finish());
   const rejected: RejectedTrack[] = problems
     .sort((a, b) => a.trackId - b.trackId)
     .map((p) => ({ trackId: p.trackId, reason: p.reason, row: p.row, rows: p.rows }));
@@ -338,6 +359,34 @@ export function buildTracks(raw: RawTable, o: BuildOptions): BuildResult {
         .join(", ")})`,
     );
   return { tracks, rejected, warnings };
+}
+
+/**
+ * Memory bounded before allocation: the scene stage puts every sample on one frame clock (frame =
+ * round(t · frameRate), Int32 frame numbers, about 16 bytes per frame of the recording's span). A
+ * span and frame rate that need more than a quarter of this machine's memory, or frame numbers past
+ * 2^31, are an error here, even when the frame rate was accepted on purpose.
+ */
+function guardFrameClock(tRaw: Float64Array, ratio: Ratio, frameRate: number, file: string): void {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < tRaw.length; i++) {
+    const v = tRaw[i]!;
+    if (v < lo) lo = v;
+    if (v > hi) hi = v;
+  }
+  if (!(hi >= lo)) return;
+  const a = toSI(lo, ratio);
+  const b = toSI(hi, ratio);
+  const frames = (b - a) * frameRate;
+  const edge = Math.max(Math.abs(a), Math.abs(b)) * frameRate;
+  const bytes = 16 * frames;
+  const limit = totalmem() / 4;
+  if (!(edge < 2 ** 31 - 1) || !(bytes < limit))
+    throw new InputError(
+      `times from ${a} s to ${b} s at ${frameRate} Hz make ${frames.toExponential(2)} frames (about ${(bytes / 2 ** 30).toFixed(1)} GiB for the frame clock, frame numbers up to ${edge.toExponential(2)}), more than this machine can hold (limit ${(limit / 2 ** 30).toFixed(1)} GiB, 2^31 frames); check the time unit and the frame rate`,
+      { file },
+    );
 }
 
 /** Whether some contiguous run of t is shorter than the acceleration window deriveMotion would use. */

@@ -8,6 +8,8 @@ import { buildTracks } from "./buildTracks.js";
 import type { LaneSource, OnBadTrack } from "./buildTracks.js";
 import type { ColumnMapping } from "./columns.js";
 import { readRoad, roadToRoadFrame, validateRoad } from "./readRoad.js";
+import { resolvePlausibility } from "./plausibility.js";
+import type { PlausibilityOptions } from "./plausibility.js";
 import { scanTable } from "./scanTable.js";
 import type { TracksFormat } from "./scanTable.js";
 import { unitFactors } from "./units.js";
@@ -49,6 +51,8 @@ export interface ReadRecordingOptions {
   format?: TracksFormat;
   /** Smoothing used where speed or acceleration is derived from positions. */
   motion?: DeriveMotionOptions;
+  /** Plausibility bounds, and checks accepted on purpose (docs/recording.md, "Plausibility"). */
+  plausibility?: PlausibilityOptions;
   progress?: Progress;
 }
 
@@ -69,19 +73,22 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
   if (typeof o.sortWithinTracks !== "boolean")
     throw new InputError(`sortWithinTracks=${JSON.stringify(o.sortWithinTracks)} should be true or false`);
   const units = unitFactors(o.units);
+  const plausibility = resolvePlausibility(o.plausibility);
   const format = o.format ?? formatFromPath(tracksPath);
   if (format !== "csv" && format !== "parquet")
     throw new InputError(`format=${JSON.stringify(format)} should be "csv" or "parquet"`);
   const progress = o.progress;
 
   const warnings: string[] = [];
-  const road = await resolveRoad(tracksPath, o.road, warnings);
+  // The tracks file first: a missing file is that, not a missing road description beside it.
   try {
     const s = await stat(tracksPath);
     if (!s.isFile()) throw new Error("not a file");
   } catch (e) {
-    throw new InputError(`cannot read the tracks file: ${(e as Error).message}`, { file: tracksPath });
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputError(code === "ENOENT" ? `the tracks file does not exist` : `cannot read the tracks file: ${(e as Error).message}`, { file: tracksPath });
   }
+  const road = await resolveRoad(tracksPath, o.road, warnings);
 
   progress?.({ stage: "read", done: 0, total: 1, message: `reading ${tracksPath}` });
   // Hash the bytes while DuckDB scans the file on its own threads.
@@ -103,6 +110,7 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
     lanes: o.lanes,
     sortWithinTracks: o.sortWithinTracks,
     motion: o.motion ?? {},
+    plausibility,
     progress,
   });
   return {
@@ -112,7 +120,7 @@ export async function readRecording(tracksPath: string, options: ReadRecordingOp
     road: roadFrame,
     tracks: built.tracks,
     rejected: built.rejected,
-    warnings: [...warnings, ...built.warnings],
+    warnings: [...warnings, ...raw.warnings, ...built.warnings],
   };
 }
 
@@ -123,7 +131,7 @@ async function resolveRoad(tracksPath: string, road: Road | string | undefined, 
   try {
     await stat(beside);
   } catch {
-    throw new InputError(`no road description: expected ${beside} beside the tracks file, or pass { road }`, { file: tracksPath });
+    throw new InputError(`no road description: expected ${beside} beside the tracks file, or give one (CLI --road FILE, API { road })`, { file: tracksPath });
   }
   return readRoad(beside, warnings);
 }
@@ -132,7 +140,7 @@ function formatFromPath(path: string): TracksFormat {
   const ext = extname(path).toLowerCase();
   if (ext === ".csv" || ext === ".tsv" || ext === ".txt") return "csv";
   if (ext === ".parquet" || ext === ".pq") return "parquet";
-  throw new InputError(`cannot tell the format from the extension "${ext}"; expected .csv or .parquet, or pass { format }`, {
+  throw new InputError(`cannot tell the format from the extension "${ext}"; expected .csv or .parquet, or give the format (CLI --format, API { format })`, {
     file: path,
   });
 }

@@ -2,9 +2,10 @@ import { readFile } from "node:fs/promises";
 import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../core/io.js";
 import { validateMarkings } from "../kinematics/assignLanes.js";
+import { validateConditions } from "./conditions.js";
 import type { Road } from "./types.js";
 
-const ROAD_FIELDS = ["name", "laneMarkings", "frameRate", "speedLimit", "xRange", "direction"] as const;
+const ROAD_FIELDS = ["name", "laneMarkings", "frameRate", "speedLimit", "xRange", "direction", "conditions"] as const;
 
 /**
  * Read and validate a road description (JSON). Errors name the file and the field. Unknown fields are
@@ -56,6 +57,7 @@ export function validateRoad(value: unknown, file?: string, warnings?: string[])
       throw new InputError(`field "direction" should be "+x" or "-x"`, where("direction", o.direction));
     road.direction = o.direction;
   }
+  if (o.conditions !== undefined) road.conditions = validateConditions(o.conditions, file);
   if (warnings) {
     const known = new Set<string>(ROAD_FIELDS);
     for (const k of Object.keys(o))

@@ -3,6 +3,8 @@
  * x along the carriageway in the driving direction (m), y to the left of it (m).
  */
 
+import type { RecordingConditions } from "./conditions.js";
+
 /** Description of the recorded road section. */
 export interface Road {
   /** Free-form name of the section (fictional for our demo data). */
@@ -26,6 +28,12 @@ export interface Road {
    * road frame, i.e. "+x".
    */
   direction?: "+x" | "-x";
+  /**
+   * Conditions of the recording (site, road type, traffic density, time of day, weather, lighting,
+   * recording method), when stated; see docs/recording.md. Carried into the recording summary, the
+   * plan's provenance and the catalogue, so that shares can be broken down by them.
+   */
+  conditions?: RecordingConditions;
 }
 
 /** Object classes the tools know; anything else is kept as "other". */

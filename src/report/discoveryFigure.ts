@@ -44,7 +44,14 @@ export function discoveryFigure(series: DiscoverySeries[], asymptotes: { name: s
       line: { color: colour, dash: s.style === "observed" ? "solid" : s.style === "rarefied" ? "dash" : "dot", width: 2 },
     });
   });
-  const shapes = asymptotes.map((a) => ({
+  // The y axis fits the curves; an estimated total far above them would flatten them, so it is then
+  // named in a note at the top instead of drawn.
+  let yMax = 0;
+  for (const s of series) for (let i = 0; i < s.count.length; i++) yMax = Math.max(yMax, s.count[i]!, s.upper ? s.upper[i]! : 0);
+  const yTop = yMax > 0 ? yMax * 1.15 : 1;
+  const drawn = asymptotes.filter((a) => a.value <= yTop);
+  const above = asymptotes.filter((a) => a.value > yTop);
+  const shapes = drawn.map((a) => ({
     type: "line",
     xref: "paper",
     x0: 0,
@@ -53,7 +60,7 @@ export function discoveryFigure(series: DiscoverySeries[], asymptotes: { name: s
     y1: a.value,
     line: { color: "#6f7b87", dash: "longdash", width: 1 },
   }));
-  const annotations = asymptotes.map((a) => ({
+  const annotations: Record<string, unknown>[] = drawn.map((a) => ({
     xref: "paper",
     x: 1,
     xanchor: "right",
@@ -63,11 +70,24 @@ export function discoveryFigure(series: DiscoverySeries[], asymptotes: { name: s
     showarrow: false,
     font: { size: 11, color: "#4a5561" },
   }));
+  if (above.length > 0)
+    annotations.push({
+      xref: "paper",
+      yref: "paper",
+      x: 0,
+      xanchor: "left",
+      y: 1,
+      yanchor: "top",
+      text: `above the chart: ${above.map((a) => `${a.name} ${a.value.toFixed(1)}`).join(", ")}`,
+      showarrow: false,
+      font: { size: 11, color: "#4a5561" },
+      bgcolor: "rgba(255,255,255,0.8)",
+    });
   return {
     data,
     layout: baseLayout(title ?? "Catalogue discovery: distinct scenario types against vehicle-km", {
       xaxis: { title: { text: "vehicle-km" }, rangemode: "tozero" },
-      yaxis: { title: { text: "distinct kinds seen" }, rangemode: "tozero" },
+      yaxis: { title: { text: "distinct kinds seen" }, range: [0, round(yTop, 3)] },
       shapes,
       annotations,
       legend: { orientation: "h", y: -0.2 },

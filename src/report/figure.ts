@@ -9,20 +9,23 @@ export interface Figure {
   config?: Record<string, unknown>;
 }
 
-/** Our own categorical palette (12 hues, colour-blind aware ordering), then repeated with a marker change. */
+/**
+ * Our own categorical palette (12 hues, colour-blind aware ordering). No red: red (ALERT_COLOUR) is
+ * kept for critical scenarios and thresholds, so a cluster can never be mistaken for them.
+ */
 export const PALETTE = [
   "#2f6db3",
   "#e08a1e",
   "#3a9a5b",
-  "#c4443c",
+  "#4b4f9e",
   "#7d5ab5",
-  "#8a6a4f",
+  "#5c8a8a",
   "#d36fae",
   "#6f7b87",
   "#a8a530",
   "#2aa3b8",
   "#1f3f6e",
-  "#b85d16",
+  "#c9a227",
 ] as const;
 
 /** Colour for noise / unclustered scenarios. */

@@ -1,3 +1,4 @@
+import { InputError } from "../core/errors.js";
 import type { Matrix } from "../core/matrix.js";
 import { ALERT_COLOUR, FIGURE_CONFIG, baseLayout, clusterColour, round, type Figure } from "./figure.js";
 
@@ -12,8 +13,10 @@ export interface ScenarioMapInput {
   hover?: string[];
   /** Optional flag per scenario: critical scenarios get an outline. */
   critical?: ArrayLike<boolean>;
-  /** Map method, shown in the axis titles ("pca" or "umap"). */
+  /** Map method ("pca" or "umap"), named in the title. */
   method: string;
+  /** Legend name per cluster label (default "cluster 3", "rare: in no dense cluster"). */
+  clusterName?: (label: number) => string;
   title?: string;
 }
 
@@ -23,8 +26,8 @@ export interface ScenarioMapInput {
  */
 export function scenarioMapFigure(input: ScenarioMapInput): Figure {
   const { coords, labels } = input;
-  if (coords.cols !== 2) throw new RangeError(`coords.cols=${coords.cols} should be 2`);
-  if (labels.length !== coords.rows) throw new RangeError(`labels.length=${labels.length} should equal coords.rows=${coords.rows}`);
+  if (coords.cols !== 2) throw new InputError(`coords.cols=${coords.cols} should be 2`);
+  if (labels.length !== coords.rows) throw new InputError(`labels.length=${labels.length} should equal coords.rows=${coords.rows}`);
   const groups = new Map<number, number[]>();
   for (let i = 0; i < labels.length; i++) {
     const l = labels[i]!;
@@ -39,7 +42,7 @@ export function scenarioMapFigure(input: ScenarioMapInput): Figure {
     return {
       type: big ? "scattergl" : "scatter",
       mode: "markers",
-      name: l < 0 ? `noise (${idx.length})` : `cluster ${l} (${idx.length})`,
+      name: `${input.clusterName ? input.clusterName(l) : l < 0 ? "rare: in no dense cluster" : `cluster ${l}`} (${idx.length})`,
       x: idx.map((i) => round(coords.data[2 * i]!)),
       y: idx.map((i) => round(coords.data[2 * i + 1]!)),
       text: input.hover ? idx.map((i) => input.hover![i]!) : undefined,
@@ -53,7 +56,7 @@ export function scenarioMapFigure(input: ScenarioMapInput): Figure {
     data.push({
       type: "scatter",
       mode: "markers",
-      name: `critical (${crit.length})`,
+      name: `critical: red ring (${crit.length})`,
       x: crit.map((i) => round(coords.data[2 * i]!)),
       y: crit.map((i) => round(coords.data[2 * i + 1]!)),
       text: input.hover ? crit.map((i) => input.hover![i]!) : undefined,
@@ -64,7 +67,7 @@ export function scenarioMapFigure(input: ScenarioMapInput): Figure {
   data.push({
     type: "scatter",
     mode: "markers",
-    name: `test cases (${reps.length})`,
+    name: `test cases: diamond (${reps.length})`,
     x: reps.map((i) => round(coords.data[2 * i]!)),
     y: reps.map((i) => round(coords.data[2 * i + 1]!)),
     text: input.hover ? reps.map((i) => input.hover![i]!) : undefined,
@@ -77,13 +80,17 @@ export function scenarioMapFigure(input: ScenarioMapInput): Figure {
     },
   });
   const m = input.method.toUpperCase();
+  // The map's coordinates have no unit or meaning of their own (only distances matter), so the axes
+  // carry no numbers and are named by what the reader can take from them.
+  const axis = (text: string): Record<string, unknown> => ({ title: { text }, zeroline: false, showticklabels: false, ticks: "" });
   return {
     data,
-    layout: baseLayout(input.title ?? `Scenario map (${m}), coloured by cluster; diamonds are test cases`, {
-      xaxis: { title: { text: `${m} 1` }, zeroline: false },
-      yaxis: { title: { text: `${m} 2` }, zeroline: false },
-      legend: { itemsizing: "constant" },
-      height: 560,
+    layout: baseLayout(input.title ?? `Map of similarity: every scenario is a point, nearby points are similar scenarios (${m})`, {
+      xaxis: axis("map of similarity — nearby points are similar scenarios"),
+      yaxis: axis("(the directions have no meaning of their own)"),
+      legend: { itemsizing: "constant", orientation: "h", y: -0.08, font: { size: 11 } },
+      height: 640,
+      margin: { l: 40, r: 20, t: 50, b: 20 },
     }),
     config: FIGURE_CONFIG,
   };

@@ -88,7 +88,7 @@ export function buildScenarios(
         singles++;
         continue;
       }
-      const cuts = o.window.mode === "events" ? eventCuts(tr, maneuvers[k]!, scenes[k]!, s, e, o.window.leadSeconds) : [];
+      const cuts = o.window.mode === "events" ? eventCuts(tr, maneuvers[k]!, scenes[k]!, s, e, o.window.leadS) : [];
       const windows = cutWindows(tr.t, s, e, o.window, cuts);
       for (let w = 0; w < windows.length; w++) {
         const [a, b] = windows[w]!;
@@ -119,7 +119,7 @@ export function buildScenarios(
   };
 }
 
-/** Cut points of the events mode: leadSeconds before each ego lane-change start and each scene event. */
+/** Cut points of the events mode: leadS before each ego lane-change start and each scene event. */
 function eventCuts(tr: Track, m: TrackManeuvers, scene: EgoScene, s: number, e: number, lead: number): number[] {
   const times: number[] = [];
   for (const g of m.segments) if (g.axis === "lateral" && g.maneuver !== "lane-keep" && g.startFrame >= s && g.startFrame < e) times.push(g.tStart - lead);
@@ -241,7 +241,7 @@ function summarize(
     laneChangesLeft: left,
     laneChangesRight: right,
   };
-  const nominal = o.window.mode === "fixed" ? o.window.seconds : o.window.minSeconds;
+  const nominal = o.window.mode === "fixed" ? o.window.lengthS : o.window.minS;
   const sc: Scenario = {
     index,
     id: `${recording.id}/${tr.id}/${ordinal}`,

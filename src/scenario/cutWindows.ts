@@ -9,9 +9,9 @@ const EPS = 1e-9;
  *
  * - fixed: a window ends at the first sample at least `seconds` after its start; a final remainder
  *   shorter than half a window joins the window before it.
- * - events: a window ends at the first cut point at least minSeconds after its start when that comes
- *   within maxSeconds, otherwise maxSeconds after its start; a remainder shorter than minSeconds
- *   joins the last window (which may then exceed maxSeconds by less than minSeconds).
+ * - events: a window ends at the first cut point at least minS after its start when that comes
+ *   within maxS, otherwise maxS after its start; a remainder shorter than minS
+ *   joins the last window (which may then exceed maxS by less than minS).
  *   `cuts` are sample indices (any order, duplicates allowed).
  */
 export function cutWindows(t: Float64Array, s: number, e: number, window: ResolvedScenarioOptions["window"], cuts: number[] = []): Array<[number, number]> {
@@ -27,13 +27,13 @@ export function cutWindows(t: Float64Array, s: number, e: number, window: Resolv
     case "fixed": {
       let a = s;
       while (a < last) {
-        const b = firstAtOrAfter(a + 1, t[a]! + window.seconds);
+        const b = firstAtOrAfter(a + 1, t[a]! + window.lengthS);
         out.push([a, b]);
         a = b;
       }
       if (out.length >= 2) {
         const [a0, b0] = out[out.length - 1]!;
-        if (t[b0]! - t[a0]! < window.seconds / 2 - EPS) {
+        if (t[b0]! - t[a0]! < window.lengthS / 2 - EPS) {
           out.pop();
           out[out.length - 1]![1] = b0;
         }
@@ -45,11 +45,11 @@ export function cutWindows(t: Float64Array, s: number, e: number, window: Resolv
       let a = s;
       let k = 0;
       while (a < last) {
-        while (k < sorted.length && (sorted[k]! <= a || t[sorted[k]!]! - t[a]! < window.minSeconds - EPS)) k++;
+        while (k < sorted.length && (sorted[k]! <= a || t[sorted[k]!]! - t[a]! < window.minS - EPS)) k++;
         let b: number;
-        if (k < sorted.length && t[sorted[k]!]! - t[a]! <= window.maxSeconds + EPS) b = sorted[k]!;
-        else b = firstAtOrAfter(a + 1, t[a]! + window.maxSeconds);
-        if (t[last]! - t[b]! < window.minSeconds - EPS) b = last;
+        if (k < sorted.length && t[sorted[k]!]! - t[a]! <= window.maxS + EPS) b = sorted[k]!;
+        else b = firstAtOrAfter(a + 1, t[a]! + window.maxS);
+        if (t[last]! - t[b]! < window.minS - EPS) b = last;
         out.push([a, b]);
         a = b;
       }

@@ -1,16 +1,31 @@
+import { renameDeprecated } from "../core/aliases.js";
 import { InputError } from "../core/errors.js";
 
-/** How drives are cut into windows. */
+/**
+ * How drives are cut into windows. Durations are in seconds and end in S, as every duration option
+ * does (the 0.1 names seconds / minSeconds / maxSeconds / leadSeconds are still accepted).
+ */
 export type WindowSpec =
-  | { mode: "fixed"; seconds: number }
-  | { mode: "events"; minSeconds: number; maxSeconds: number; leadSeconds?: number };
+  | { mode: "fixed"; lengthS?: number; /** @deprecated use lengthS */ seconds?: number }
+  | {
+      mode: "events";
+      minS?: number;
+      maxS?: number;
+      leadS?: number;
+      /** @deprecated use minS */ minSeconds?: number;
+      /** @deprecated use maxS */ maxSeconds?: number;
+      /** @deprecated use leadS */ leadSeconds?: number;
+    };
+
+/** A window spec as resolved (new names only, defaults filled in). */
+export type ResolvedWindow = { mode: "fixed"; lengthS: number } | { mode: "events"; minS: number; maxS: number; leadS: number };
 
 /** Options of {@link buildScenarios}; defaults documented in docs/scenario-tensor.md. */
 export interface ScenarioOptions {
   /**
-   * Fixed windows of `seconds` (the last one of a drive absorbs a remainder shorter than half a
-   * window), or windows cut `leadSeconds` (default 1 s) before each ego lane change and each scene
-   * event, kept within [minSeconds, maxSeconds]. Default { mode: "fixed", seconds: 10 }.
+   * Fixed windows of `lengthS` seconds (the last one of a drive absorbs a remainder shorter than
+   * half a window), or windows cut `leadS` (default 1 s) before each ego lane change and each scene
+   * event, kept within [minS, maxS]. Default { mode: "fixed", lengthS: 10 }.
    */
   window?: WindowSpec;
   /** Time steps of the tensor. Default 10. */
@@ -24,7 +39,7 @@ export interface ScenarioOptions {
 }
 
 export interface ResolvedScenarioOptions {
-  window: Required<Extract<WindowSpec, { mode: "fixed" }>> | Required<Extract<WindowSpec, { mode: "events" }>>;
+  window: ResolvedWindow;
   steps: number;
   range: number;
   maxInverseTtc: number;
@@ -32,7 +47,7 @@ export interface ResolvedScenarioOptions {
 }
 
 export const SCENARIO_DEFAULTS: Readonly<ResolvedScenarioOptions> = Object.freeze({
-  window: { mode: "fixed" as const, seconds: 10 },
+  window: { mode: "fixed" as const, lengthS: 10 },
   steps: 10,
   range: 100,
   maxInverseTtc: 10,
@@ -40,25 +55,30 @@ export const SCENARIO_DEFAULTS: Readonly<ResolvedScenarioOptions> = Object.freez
 });
 
 export function resolveScenarioOptions(options: ScenarioOptions = {}): ResolvedScenarioOptions {
-  const w = options.window ?? SCENARIO_DEFAULTS.window;
+  const given = options.window ?? SCENARIO_DEFAULTS.window;
   let window: ResolvedScenarioOptions["window"];
-  const mode = (w as { mode?: unknown }).mode;
-  switch (w.mode) {
-    case "fixed":
-      if (!(w.seconds > 0) || !Number.isFinite(w.seconds)) throw new InputError(`window.seconds=${String(w.seconds)} should be a finite number > 0`);
-      window = { mode: "fixed", seconds: w.seconds };
+  const mode = (given as { mode?: unknown }).mode;
+  switch (given.mode) {
+    case "fixed": {
+      const w = renameDeprecated(given, { seconds: "lengthS" }, "scenario window");
+      const length = w.lengthS ?? 10;
+      if (!(length > 0) || !Number.isFinite(length)) throw new InputError(`window.lengthS=${String(length)} should be a finite number > 0 (s)`);
+      window = { mode: "fixed", lengthS: length };
       break;
+    }
     case "events": {
-      const lead = w.leadSeconds ?? 1;
-      if (!(w.minSeconds > 0)) throw new InputError(`window.minSeconds=${String(w.minSeconds)} should be a number > 0`);
-      if (!(w.maxSeconds >= w.minSeconds) || !Number.isFinite(w.maxSeconds))
-        throw new InputError(`window.maxSeconds=${String(w.maxSeconds)} should be a finite number >= minSeconds=${w.minSeconds}`);
-      if (!(lead >= 0)) throw new InputError(`window.leadSeconds=${String(lead)} should be a number >= 0`);
-      window = { mode: "events", minSeconds: w.minSeconds, maxSeconds: w.maxSeconds, leadSeconds: lead };
+      const w = renameDeprecated(given, { minSeconds: "minS", maxSeconds: "maxS", leadSeconds: "leadS" }, "scenario window");
+      const lead = w.leadS ?? 1;
+      const min = w.minS as number;
+      const max = w.maxS as number;
+      if (!(min > 0)) throw new InputError(`window.minS=${String(min)} should be a number > 0 (s)`);
+      if (!(max >= min) || !Number.isFinite(max)) throw new InputError(`window.maxS=${String(max)} should be a finite number >= minS=${min}`);
+      if (!(lead >= 0)) throw new InputError(`window.leadS=${String(lead)} should be a number >= 0 (s)`);
+      window = { mode: "events", minS: min, maxS: max, leadS: lead };
       break;
     }
     default: {
-      const never: never = w;
+      const never: never = given;
       throw new InputError(`window.mode=${JSON.stringify(mode)} should be "fixed" or "events" (got ${JSON.stringify(never)})`);
     }
   }

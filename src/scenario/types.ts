@@ -1,6 +1,7 @@
 import type { ObjectKind } from "../recording/types.js";
 import type { LateralManeuver, LongitudinalManeuver } from "../maneuvers/labels.js";
 import type { SceneEventKind } from "../scene/slots.js";
+import type { ScenarioClassId } from "../logical/classes.js";
 
 /** Criticality of a scenario: extremes over its window. */
 export interface ScenarioCriticality {
@@ -63,10 +64,42 @@ export interface Scenario {
   /** Ego motion summary over the window (filled by buildScenarios; the embedding reads it). */
   stats?: ScenarioStats;
   /**
-   * True when the window is shorter than the nominal length (fixed mode) or minSeconds (event mode)
+   * True when the window is shorter than the nominal length (fixed mode) or minS (event mode)
    * because the drive ended or was interrupted by a time gap.
    */
   partial?: boolean;
+  /** Functional class (filled by measureScenarioParameters, src/logical/). */
+  scenarioClass?: ScenarioClassId;
+  /** The class's parameters in SI units; null = not measurable in this window (never NaN). */
+  parameters?: Record<string, number | null>;
+  /** Who and when behind the window's criticality extremes, for counting critical events once. */
+  criticalContext?: CriticalContext;
+}
+
+/** One critical episode as the ego saw it: the other vehicle and the time span around the extreme. */
+export interface CriticalEpisode {
+  /** Track id of the other vehicle of the pair; -1 when there is none. */
+  other: number;
+  /** Span of consecutive flagged samples around the extreme (s, recording clock), and the extreme's time. */
+  tFrom: number;
+  tTo: number;
+  tPeak: number;
+  /** True when the ego is the one behind in the pair (the other is its leader). */
+  egoFollows?: boolean;
+}
+
+export interface CriticalContext {
+  /** Seconds the ego track is observed in total. */
+  trackSeconds: number;
+  /** Episode behind the minimum TTC (or minimum THW): the pair is ego and its leader. */
+  leader: CriticalEpisode | null;
+  /** Episode behind the peak ego deceleration: the pair is ego and its leader when it was following closely, else ego and its follower. */
+  braking: CriticalEpisode | null;
+  /** The first cut-in of the window: the pair is the ego and the cutting vehicle. */
+  cutIn?: CriticalEpisode | null;
+  /** Peak absolute acceleration of the ego and of its leader over the window (m/s², smoothed), for the physical-bound check. */
+  maxAbsAccel: number;
+  leaderMaxAbsAccel: number;
 }
 
 /** Ego motion summary of one scenario window. Speeds in m/s, accelerations in m/s². */

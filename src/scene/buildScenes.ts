@@ -161,9 +161,9 @@ function egoScene(
       dracA[i] = drac(g, vE, vL);
     }
     let fl = 0;
-    if (ttc[i]! < o.ttcThreshold) fl |= FLAG_TTC;
-    if (thw[i]! < o.thwThreshold) fl |= FLAG_THW;
-    if (em.motion.ax[i]! < -o.harshDecel) fl |= FLAG_HARSH_BRAKING;
+    if (ttc[i]! < o.ttcBelow) fl |= FLAG_TTC;
+    if (thw[i]! < o.thwBelow) fl |= FLAG_THW;
+    if (em.motion.ax[i]! < -o.decelAbove) fl |= FLAG_HARSH_BRAKING;
     flags[i] = fl;
   }
 

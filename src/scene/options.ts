@@ -1,12 +1,22 @@
+import { renameDeprecated } from "../core/aliases.js";
 import { InputError } from "../core/errors.js";
 
-/** Options of {@link buildScenes}; defaults documented in docs/scene.md. */
+/**
+ * Options of {@link buildScenes}; defaults documented in docs/scene.md. Thresholds are named after
+ * the quantity and the comparison (ttcBelow, decelAbove), the same names as the plan's options.
+ */
 export interface SceneOptions {
   /** Frames with 0 <= TTC below this are flagged "ttc" (s). Default 1.5 (common practice). */
-  ttcThreshold?: number;
+  ttcBelow?: number;
   /** Frames with time headway below this are flagged "thw" (s). Default 0.9 (common practice). */
-  thwThreshold?: number;
+  thwBelow?: number;
   /** Ego decelerating harder than this is flagged "harsh-braking" (m/s², positive). Default 3.0 (common practice). */
+  decelAbove?: number;
+  /** @deprecated use ttcBelow (accepted for one version). */
+  ttcThreshold?: number;
+  /** @deprecated use thwBelow (accepted for one version). */
+  thwThreshold?: number;
+  /** @deprecated use decelAbove (accepted for one version). */
   harshDecel?: number;
   /**
    * A vehicle whose centre crosses into the ego lane ahead of the ego's centre counts as a cut-in
@@ -27,12 +37,15 @@ export interface SceneOptions {
   frameRate?: number;
 }
 
-export type ResolvedSceneOptions = Required<SceneOptions>;
+export type ResolvedSceneOptions = Required<Omit<SceneOptions, "ttcThreshold" | "thwThreshold" | "harshDecel">>;
+
+/** The old option names and their new ones. */
+export const SCENE_RENAMED: Readonly<Record<string, string>> = Object.freeze({ ttcThreshold: "ttcBelow", thwThreshold: "thwBelow", harshDecel: "decelAbove" });
 
 export const SCENE_DEFAULTS: Readonly<Omit<ResolvedSceneOptions, "frameRate">> = Object.freeze({
-  ttcThreshold: 1.5,
-  thwThreshold: 0.9,
-  harshDecel: 3.0,
+  ttcBelow: 1.5,
+  thwBelow: 0.9,
+  decelAbove: 3.0,
   cutInMaxGap: 50,
   cutOutMaxGap: 50,
   closingSpeed: 2.0,
@@ -43,7 +56,7 @@ export const SCENE_DEFAULTS: Readonly<Omit<ResolvedSceneOptions, "frameRate">> =
 
 export function resolveSceneOptions(options: SceneOptions, recordingFrameRate: number): ResolvedSceneOptions {
   const o: ResolvedSceneOptions = { ...SCENE_DEFAULTS, frameRate: recordingFrameRate };
-  for (const [k, v] of Object.entries(options)) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
+  for (const [k, v] of Object.entries(renameDeprecated(options, SCENE_RENAMED, "scene options"))) if (v !== undefined) (o as unknown as Record<string, unknown>)[k] = v;
   for (const [k, v] of Object.entries(o)) {
     if (typeof v !== "number" || !Number.isFinite(v) || !(v > 0))
       throw new InputError(`${k}=${String(v)} should be a finite number > 0`);

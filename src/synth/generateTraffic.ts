@@ -5,7 +5,7 @@ import { VERSION } from "../core/version.js";
 import { LAT_KEEP, LAT_LEFT, LAT_RIGHT } from "../maneuvers/labels.js";
 import type { Recording, Road, Track } from "../recording/types.js";
 import { labelLongitudinalTruth } from "./labelLongitudinalTruth.js";
-import { resolveTrafficOptions, type TrafficOptions } from "./options.js";
+import { recordedOptions, resolveTrafficOptions, varietyActive, type TrafficOptions } from "./options.js";
 import { Simulator } from "./simulator.js";
 import type { GroundTruth, PlantedEvent, TrackTruth, TruthCutIn, TruthLaneChange } from "./types.js";
 import type { Vehicle } from "./vehicle.js";
@@ -37,6 +37,8 @@ export interface GeneratedTraffic {
   stats: TrafficStats;
   warnings: string[];
 }
+
+const PROFILE_NAMES = ["minimum-jerk", "constant-speed", "sinusoidal"] as const;
 
 /** Round to 1e-3 (mm, ms, mm/s): files stay small and byte-reproducible. */
 export function round3(v: number): number {
@@ -232,6 +234,10 @@ function assemble(
       toLane: lc.to,
     };
     if (lc.startMs < s[0] || lc.endMs > s[1]) item.partial = true;
+    if (varietyActive(o)) {
+      item.profile = PROFILE_NAMES[lc.shape];
+      if (lc.tag) item.case = lc.tag;
+    }
     laneChanges.push(item);
   }
 
@@ -262,10 +268,11 @@ function assemble(
     planted,
     definitions: truthDefinitions(o),
   };
+  if (varietyActive(o)) truth.markingRiders = sim.recorded.filter((u) => u.rideSide !== 0).map((u) => u.trackId);
   const recording: Recording = {
     id: o.recordingId,
     source: "generated",
-    checksum: sha256Text(JSON.stringify({ generator: "roadsieve synth", version: VERSION, seed: rng.seed, options: o })),
+    checksum: sha256Text(JSON.stringify({ generator: "roadsieve synth", version: VERSION, seed: rng.seed, options: recordedOptions(o) })),
     road: generatedRoad(o),
     tracks,
     rejected: [],

@@ -59,3 +59,38 @@ export function sampleLaneChangeDuration(rng: Rng, mean: number, sd: number, min
   }
   return Math.round(Math.min(max, Math.max(min, mean)) * 500) / 500;
 }
+
+/**
+ * Lateral profiles of issue 11 beside the minimum-jerk one: 0 minimum-jerk, 1 constant lateral speed
+ * (s = τ; the speed jumps at both ends, as in the continuous lane-change models of microscopic
+ * traffic simulators), 2 half-cosine (1 − cos πτ)/2 (zero speed at both ends, a jump of the lateral
+ * acceleration; common practice in path planning). Value, slope and curvature per shape code.
+ */
+export type ShapeCode = 0 | 1 | 2;
+
+export function shapeValue(code: ShapeCode, tau: number): number {
+  if (code === 0) return quinticShape(tau);
+  if (tau <= 0) return 0;
+  if (tau >= 1) return 1;
+  return code === 1 ? tau : 0.5 * (1 - Math.cos(Math.PI * tau));
+}
+
+export function shapeSlope(code: ShapeCode, tau: number): number {
+  if (code === 0) return quinticSlope(tau);
+  if (tau < 0 || tau >= 1) return 0;
+  return code === 1 ? 1 : 0.5 * Math.PI * Math.sin(Math.PI * tau);
+}
+
+export function shapeCurvature(code: ShapeCode, tau: number): number {
+  if (code === 0) return quinticCurvature(tau);
+  if (tau < 0 || tau >= 1 || code === 1) return 0;
+  return 0.5 * Math.PI * Math.PI * Math.cos(Math.PI * tau);
+}
+
+/** The τ where the shape reaches fraction f of its travel. */
+export function shapeInverse(code: ShapeCode, f: number): number {
+  if (f <= 0) return 0;
+  if (f >= 1) return 1;
+  if (code === 0) return quinticInverse(f);
+  return code === 1 ? f : Math.acos(1 - 2 * f) / Math.PI;
+}

@@ -99,6 +99,27 @@ export interface TrafficOptions {
   laneChangeDurationMin: number;
   laneChangeDurationMax: number;
 
+  // --- traffic unlike our defaults (issue 11; all off by default, see VARIETY_DEFAULTS) -----------
+  /** Share of lane changes with constant lateral speed (a ramp) instead of the minimum-jerk profile, 0..1. */
+  constantSpeedShare: number;
+  /** Duration of constant-speed lane changes: log-normal mean and sd (s), redrawn outside [laneChangeDurationMin, Max]. */
+  constantSpeedDurationMean: number;
+  constantSpeedDurationSd: number;
+  /** Share of lane changes with the half-cosine profile (1 − cos πτ)/2, 0..1 (constantSpeedShare + this <= 1). */
+  sinusoidalShare: number;
+  sinusoidalDurationMean: number;
+  sinusoidalDurationSd: number;
+  /** Probability that a lane change is followed, after a short pause, by a second one in the same direction, 0..1. */
+  doubleLaneChangeShare: number;
+  /** Pause between the two changes of a double lane change: uniform in [0, this] (s); while the target lane has no room the second waits up to 3 s more, then is dropped. */
+  doubleLaneChangePauseMax: number;
+  /** Share of cars that drift onto a lane marking, ride it for a while and drift back, never changing lane, 0..1. */
+  markingRiderShare: number;
+  /** Share of vehicles that start a lane change shortly before the section's start or end, so that they enter or leave mid-maneuver, 0..1. */
+  edgeLaneChangeShare: number;
+  /** Lane changes of trucks last this many times longer (>= 1). */
+  truckLaneChangeFactor: number;
+
   // --- lateral position within the lane ----------------------------------------------------------
   /** Per-driver constant offset from the lane centre: normal sd (m), clipped to ±0.4 m. */
   laneOffsetSd: number;
@@ -184,6 +205,17 @@ export const DEFAULT_TRAFFIC_OPTIONS: Readonly<TrafficOptions> = Object.freeze({
   laneChangeDurationSd: 2,
   laneChangeDurationMin: 1.5,
   laneChangeDurationMax: 14,
+  constantSpeedShare: 0,
+  constantSpeedDurationMean: 4.5,
+  constantSpeedDurationSd: 1.5,
+  sinusoidalShare: 0,
+  sinusoidalDurationMean: 5,
+  sinusoidalDurationSd: 1.5,
+  doubleLaneChangeShare: 0,
+  doubleLaneChangePauseMax: 2.4,
+  markingRiderShare: 0,
+  edgeLaneChangeShare: 0,
+  truckLaneChangeFactor: 1,
   laneOffsetSd: 0.15,
   weaveAmplitude: 0.1,
   hardBrakingRate: 0.03,
@@ -255,6 +287,17 @@ const NUMERIC_CHECKS: Check[] = [
   ["laneChangeDurationSd", gt0, "> 0 s"],
   ["laneChangeDurationMin", (v) => v >= 0.5, ">= 0.5 s"],
   ["laneChangeDurationMax", gt0, "> 0 s"],
+  ["constantSpeedShare", (v) => v >= 0 && v <= 1, "in [0, 1]"],
+  ["constantSpeedDurationMean", gt0, "> 0 s"],
+  ["constantSpeedDurationSd", gt0, "> 0 s"],
+  ["sinusoidalShare", (v) => v >= 0 && v <= 1, "in [0, 1]"],
+  ["sinusoidalDurationMean", gt0, "> 0 s"],
+  ["sinusoidalDurationSd", gt0, "> 0 s"],
+  ["doubleLaneChangeShare", (v) => v >= 0 && v <= 1, "in [0, 1]"],
+  ["doubleLaneChangePauseMax", (v) => v >= 0 && v <= 30, "in [0, 30] s"],
+  ["markingRiderShare", (v) => v >= 0 && v <= 1, "in [0, 1]"],
+  ["edgeLaneChangeShare", (v) => v >= 0 && v <= 1, "in [0, 1]"],
+  ["truckLaneChangeFactor", (v) => v >= 1 && v <= 5, "in [1, 5]"],
   ["laneOffsetSd", (v) => v >= 0 && v <= 0.5, "in [0, 0.5] m"],
   ["weaveAmplitude", (v) => v >= 0 && v <= 0.5, "in [0, 0.5] m"],
   ["hardBrakingRate", (v) => v >= 0 && v <= 1, "in [0, 1] per vehicle-km"],
@@ -318,8 +361,59 @@ export function resolveTrafficOptions(options: Partial<TrafficOptions> = {}): Tr
     );
   if (o.hardBrakingDecelMax > o.maxDecel)
     throw new InputError(`hardBrakingDecelMax=${o.hardBrakingDecelMax} should be <= maxDecel=${o.maxDecel}`);
+  if (o.constantSpeedShare + o.sinusoidalShare > 1)
+    throw new InputError(`constantSpeedShare=${o.constantSpeedShare} + sinusoidalShare=${o.sinusoidalShare} should be <= 1`);
   const frameMs = 1000 / o.frameRate;
   if (!Number.isInteger(frameMs / o.substeps))
     throw new InputError(`substeps=${o.substeps} should divide the frame interval of ${frameMs} ms into whole milliseconds`);
   return o;
 }
+
+/**
+ * The options that make traffic unlike the default generator (issue 11), with their off values.
+ * Written to meta.json and the recording checksum only when one differs, so that runs without them
+ * (the bundled sample among them) stay byte-identical to those made before the options existed.
+ */
+export const VARIETY_KEYS = [
+  "constantSpeedShare",
+  "constantSpeedDurationMean",
+  "constantSpeedDurationSd",
+  "sinusoidalShare",
+  "sinusoidalDurationMean",
+  "sinusoidalDurationSd",
+  "doubleLaneChangeShare",
+  "doubleLaneChangePauseMax",
+  "markingRiderShare",
+  "edgeLaneChangeShare",
+  "truckLaneChangeFactor",
+] as const satisfies ReadonlyArray<keyof TrafficOptions>;
+
+/** True when any variety option is switched on (a share above 0 or slower trucks). */
+export function varietyActive(o: TrafficOptions): boolean {
+  return o.constantSpeedShare > 0 || o.sinusoidalShare > 0 || o.doubleLaneChangeShare > 0 || o.markingRiderShare > 0 || o.edgeLaneChangeShare > 0 || o.truckLaneChangeFactor !== 1;
+}
+
+/** The options as recorded in meta.json and checksums: variety options left out while all are off. */
+export function recordedOptions(o: TrafficOptions): Partial<TrafficOptions> {
+  if (varietyActive(o)) return o;
+  const out: Partial<TrafficOptions> = { ...o };
+  for (const k of VARIETY_KEYS) delete out[k];
+  return out;
+}
+
+/**
+ * The extended generator of the maneuver benchmark (issue 11): every variety case at a rate that
+ * gives each a few hundred instances in a 1,000 vehicle-km run. Half the lane changes are not
+ * minimum-jerk (30 % constant speed, 20 % half-cosine), 15 % are followed by a second change in the
+ * same direction after a pause of up to 2.4 s, 3 % of cars ride a marking, 15 % of vehicles start a lane
+ * change up to 150 m before a section edge, and trucks change lanes 1.6 times slower.
+ */
+export const VARIETY_TRAFFIC_OPTIONS: Readonly<Partial<TrafficOptions>> = Object.freeze({
+  constantSpeedShare: 0.3,
+  sinusoidalShare: 0.2,
+  doubleLaneChangeShare: 0.15,
+  doubleLaneChangePauseMax: 2.4,
+  markingRiderShare: 0.03,
+  edgeLaneChangeShare: 0.15,
+  truckLaneChangeFactor: 1.6,
+});

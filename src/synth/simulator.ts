@@ -1,8 +1,8 @@
 import type { Rng } from "../core/rng.js";
 import { idmAcceleration, idmFreeAcceleration, type IdmParams } from "./idm.js";
-import { quinticCurvature, quinticInverse, quinticShape, quinticSlope, sampleLaneChangeDuration } from "./lateral.js";
+import { quinticCurvature, quinticShape, quinticSlope, sampleLaneChangeDuration, shapeCurvature, shapeInverse, shapeSlope, shapeValue, type ShapeCode } from "./lateral.js";
 import { mobilIncentive, mobilIsSafe, type MobilAccelerations, type MobilParams } from "./mobil.js";
-import type { TrafficOptions } from "./options.js";
+import { varietyActive, type TrafficOptions } from "./options.js";
 import { Vehicle, type VehicleKind } from "./vehicle.js";
 
 /** A lane change as executed, on the simulation clock (ms). */
@@ -13,6 +13,10 @@ export interface LaneChangeLog {
   startMs: number;
   crossMs: number;
   endMs: number;
+  /** Lateral profile (ShapeCode). */
+  shape: ShapeCode;
+  /** Set for the variety cases of issue 11. */
+  tag?: "double-first" | "double-second" | "edge";
 }
 
 /** A lane change whose crossing put the changer within cutInMaxGap ahead of the follower in the target lane. */
@@ -124,6 +128,9 @@ export class Simulator {
   private readonly rngLc: Rng;
   private readonly rngAccel: Rng;
   private readonly rngPlant: Rng;
+  /** Draws of the variety options (issue 11); unused, and the other streams untouched, while they are off. */
+  private readonly rngVar: Rng;
+  private readonly variety: boolean;
   private nextArrivalMs = 0;
   private readonly queue: Vehicle[] = [];
   private nextBrakeKm: number;
@@ -147,6 +154,8 @@ export class Simulator {
     this.rngLc = rng.fork("lane-change");
     this.rngAccel = rng.fork("acceleration");
     this.rngPlant = rng.fork("planted");
+    this.rngVar = rng.fork("variety");
+    this.variety = varietyActive(options);
     this.mobil = {
       politeness: options.politeness,
       threshold: options.changeThreshold,
@@ -241,6 +250,19 @@ export class Simulator {
       weavePhase: r.uniform(0, TWO_PI),
     });
     u.noise = o.accelNoiseSd > 0 ? this.rngAccel.normal(0, o.accelNoiseSd) : 0;
+    if (this.variety) {
+      const rv = this.rngVar;
+      if (o.markingRiderShare > 0 && kind === "car" && rv.float() < o.markingRiderShare) {
+        u.rider = true;
+        u.allowLaneChange = false;
+      }
+      if (o.edgeLaneChangeShare > 0 && !u.rider && rv.float() < o.edgeLaneChangeShare && this.setup.recordRange) {
+        const edge = rv.float() < 0.5 ? this.setup.recordRange[0] : this.setup.recordRange[1];
+        // Start up to about one lane change's travel (5 s at 30 m/s) before the edge, so that the
+        // section boundary tends to fall inside the movement.
+        u.edgeTriggerX = edge - rv.uniform(0, 150);
+      }
+    }
     return u;
   }
 
@@ -266,6 +288,7 @@ export class Simulator {
         u.lcTo = -1;
         u.hiddenFrom = null;
         u.noChangeUntilMs = Math.max(u.noChangeUntilMs, t + o.laneChangeCooldown * 1000);
+        if (u.secondTo >= 0 && u.secondAtMs < 0) u.secondAtMs = t + u.secondPauseMs;
       }
     }
 
@@ -284,6 +307,7 @@ export class Simulator {
 
     // 6. Lateral state at time t, then lane-change decisions (a new change starts from that state).
     for (const u of this.vehicles) this.updateLateral(u, t);
+    if (this.variety) this.varietyManeuvers(t);
     this.decideLaneChanges(t);
 
     // 7. Record.
@@ -412,24 +436,41 @@ export class Simulator {
       const tau = (t - u.lcStartMs) / dMs;
       const dy = u.lcY1 - u.lcY0;
       const d = dMs / 1000;
-      u.y = u.lcY0 + dy * quinticShape(tau);
-      u.vy = (dy / d) * quinticSlope(tau);
-      u.ay = (dy / (d * d)) * quinticCurvature(tau);
+      const k = u.lcShape;
+      u.y = u.lcY0 + dy * shapeValue(k, tau);
+      u.vy = (dy / d) * shapeSlope(k, tau);
+      u.ay = (dy / (d * d)) * shapeCurvature(k, tau);
       return;
     }
     const w = this.o.laneWidth;
-    const c = (u.lane + 0.5) * w + u.offset;
+    let c = (u.lane + 0.5) * w + u.offset;
+    let cv = 0;
+    let ca = 0;
+    if (u.rideSide !== 0) {
+      // Marking ride: a 3 s minimum-jerk drift from the driver's place in the lane onto the marking,
+      // the ride, and a 3 s drift back; the lane never changes.
+      const T = 3;
+      const a = (t - u.rideStartMs) / 1000 / T;
+      const b = (t - u.rideEndMs) / 1000 / T;
+      const r = quinticShape(a) - quinticShape(b);
+      const dr = (quinticSlope(a) - quinticSlope(b)) / T;
+      const ddr = (quinticCurvature(a) - quinticCurvature(b)) / (T * T);
+      const span = (u.lane + 0.5 + 0.5 * u.rideSide) * w - c;
+      c += r * span;
+      cv = dr * span;
+      ca = ddr * span;
+    }
     if (u.weaveAmp === 0) {
       u.y = c;
-      u.vy = 0;
-      u.ay = 0;
+      u.vy = cv;
+      u.ay = ca;
       return;
     }
     const ph = u.weaveOmega * (t / 1000) + u.weavePhase;
     const s = Math.sin(ph);
     u.y = c + u.weaveAmp * s;
-    u.vy = u.weaveAmp * u.weaveOmega * Math.cos(ph);
-    u.ay = -u.weaveAmp * u.weaveOmega * u.weaveOmega * s;
+    u.vy = cv + u.weaveAmp * u.weaveOmega * Math.cos(ph);
+    u.ay = ca - u.weaveAmp * u.weaveOmega * u.weaveOmega * s;
   }
 
   private weaveAt(u: Vehicle, t: number): number {
@@ -501,22 +542,93 @@ export class Simulator {
         }
       }
       if (bestLane >= 0) {
-        const d = sampleLaneChangeDuration(
-          this.rngLc,
-          o.laneChangeDurationMean,
-          o.laneChangeDurationSd,
-          o.laneChangeDurationMin,
-          o.laneChangeDurationMax,
-        );
-        this.startLaneChange(u, bestLane, Math.round(d * 1000), t);
+        const [durMs, shape] = this.drawLaneChange(u);
+        this.startLaneChange(u, bestLane, durMs, t, shape);
+        if (this.variety && o.doubleLaneChangeShare > 0) {
+          const further = 2 * bestLane - u.lcFrom;
+          if (this.rngVar.float() < o.doubleLaneChangeShare && this.laneAllowed(u, further)) {
+            u.secondTo = further;
+            u.secondPauseMs = Math.round(this.rngVar.uniform(0, o.doubleLaneChangePauseMax) * 1000);
+            u.secondAtMs = -1;
+          }
+        }
       }
     }
   }
 
+  /**
+   * Duration (ms) and profile of a new lane change. Without the variety options this is the single
+   * draw of the default generator (minimum-jerk, laneChangeDuration*), so its stream is unchanged.
+   */
+  private drawLaneChange(u: Vehicle): [number, ShapeCode] {
+    const o = this.o;
+    let shape: ShapeCode = 0;
+    if (this.variety && (o.constantSpeedShare > 0 || o.sinusoidalShare > 0)) {
+      const r = this.rngVar.float();
+      shape = r < o.constantSpeedShare ? 1 : r < o.constantSpeedShare + o.sinusoidalShare ? 2 : 0;
+    }
+    const mean = shape === 1 ? o.constantSpeedDurationMean : shape === 2 ? o.sinusoidalDurationMean : o.laneChangeDurationMean;
+    const sd = shape === 1 ? o.constantSpeedDurationSd : shape === 2 ? o.sinusoidalDurationSd : o.laneChangeDurationSd;
+    let d = sampleLaneChangeDuration(this.rngLc, mean, sd, o.laneChangeDurationMin, o.laneChangeDurationMax);
+    if (u.kind === "truck" && o.truckLaneChangeFactor !== 1) d = Math.round(d * o.truckLaneChangeFactor * 500) / 500;
+    return [Math.round(d * 1000), shape];
+  }
+
+  /** Second changes of double lane changes that are due, and lane changes at the section's edges (issue 11). */
+  private varietyManeuvers(t: number): void {
+    for (const u of this.vehicles) {
+      if (u.lcTo >= 0) continue;
+      if (u.secondTo >= 0 && u.secondAtMs >= 0 && t >= u.secondAtMs) {
+        const to = u.secondTo;
+        if (Math.abs(to - u.lane) === 1 && this.roomIn(u, to)) {
+          const first = this.laneChanges[u.lcIndex];
+          const shape = first ? first.shape : 0;
+          const [durMs] = this.drawLaneChange(u);
+          if (first) first.tag = "double-first";
+          u.secondTo = -1;
+          u.secondAtMs = -1;
+          this.startLaneChange(u, to, durMs, t, shape).tag = "double-second";
+        } else if (t > u.secondAtMs + 3000) {
+          u.secondTo = -1;
+          u.secondAtMs = -1;
+        }
+        continue;
+      }
+      if (!Number.isNaN(u.edgeTriggerX) && u.x >= u.edgeTriggerX && !u.held) {
+        const dirs = this.rngVar.float() < 0.5 ? [1, -1] : [-1, 1];
+        for (const dir of dirs) {
+          const to = u.lane + dir;
+          if (!this.laneAllowed(u, to) || !this.roomIn(u, to)) continue;
+          const [durMs, shape] = this.drawLaneChange(u);
+          this.startLaneChange(u, to, durMs, t, shape).tag = "edge";
+          u.edgeTriggerX = Number.NaN;
+          break;
+        }
+        if (!Number.isNaN(u.edgeTriggerX) && u.x > u.edgeTriggerX + 100) u.edgeTriggerX = Number.NaN;
+      }
+    }
+  }
+
+  /** At least 1 m bumper gap to the leader and follower in `lane`, and the new follower not forced beyond b_safe. */
+  private roomIn(u: Vehicle, lane: number): boolean {
+    if (!this.laneAllowed(u, lane)) return false;
+    const list = this.lanes[lane]!;
+    const k = upperBound(list, u.x);
+    const nl = k < list.length ? list[k]! : null;
+    const nf = k > 0 ? list[k - 1]! : null;
+    if (nl && (nl === u || gapBetween(u, nl) < 1)) return false;
+    if (nf && (nf === u || gapBetween(nf, u) < 1)) return false;
+    if (nf && this.accBehind(nf, u) < -this.o.safeDecel) return false;
+    return true;
+  }
+
   /** Begin a lane change at time t lasting durMs; the vehicle joins the target lane's list at once. */
-  private startLaneChange(u: Vehicle, to: number, durMs: number, t: number): LaneChangeLog {
+  private startLaneChange(u: Vehicle, to: number, durMs: number, t: number, shape: ShapeCode = 0): LaneChangeLog {
     const w = this.o.laneWidth;
     const from = u.lane;
+    // Any new lane change ends a pending second change of a double lane change.
+    u.secondTo = -1;
+    u.secondAtMs = -1;
     u.lcFrom = from;
     u.lcTo = to;
     u.lcStartMs = t;
@@ -524,10 +636,11 @@ export class Simulator {
     u.lcY0 = u.y;
     u.lcY1 = (to + 0.5) * w + u.offset + this.weaveAt(u, t + durMs);
     const marking = w * Math.max(from, to);
-    const tau = quinticInverse((marking - u.lcY0) / (u.lcY1 - u.lcY0));
+    u.lcShape = shape;
+    const tau = shapeInverse(shape, (marking - u.lcY0) / (u.lcY1 - u.lcY0));
     u.lcCrossMs = Math.min(u.lcEndMs - 1, Math.max(t + 1, t + Math.round(tau * durMs)));
     u.crossed = false;
-    const log: LaneChangeLog = { vehicle: u, from, to, startMs: t, crossMs: u.lcCrossMs, endMs: u.lcEndMs };
+    const log: LaneChangeLog = { vehicle: u, from, to, startMs: t, crossMs: u.lcCrossMs, endMs: u.lcEndMs, shape };
     u.lcIndex = this.laneChanges.length;
     this.laneChanges.push(log);
     // Join the target lane now: its followers react from the start of the movement.
@@ -734,6 +847,13 @@ export class Simulator {
       u.v = bestSpeed;
       u.lane = lane;
       u.nextDecisionMs = t + this.rngDriver.int(this.checkSteps) * this.dtMs;
+      if (u.rider) {
+        // Ride the marking to the left of the lane (to the right in the leftmost lane), starting
+        // 15–45 s after entering (the observed section begins about 30 s downstream) for 15–40 s.
+        u.rideSide = lane + 1 < o.lanes ? 1 : lane > 0 ? -1 : 0;
+        u.rideStartMs = t + Math.round(this.rngVar.uniform(15, 45) * 1000);
+        u.rideEndMs = u.rideStartMs + Math.round(this.rngVar.uniform(15, 40) * 1000);
+      }
       this.updateLateral(u, t);
       this.vehicles.unshift(u);
       this.lanes[lane]!.unshift(u);

@@ -21,19 +21,19 @@ export function encodeRuns(codes: Int8Array): number[] {
 
 /** Inverse of encodeRuns; `frames` checks the total length. */
 export function decodeRuns(runs: number[], frames: number, what = "runs"): Int8Array {
-  if (!Array.isArray(runs) || runs.length % 2 !== 0) throw new RangeError(`${what} should be [code, count, …] pairs`);
+  if (!Array.isArray(runs) || runs.length % 2 !== 0) throw new InputError(`${what} should be [code, count, …] pairs`);
   const out = new Int8Array(frames);
   let k = 0;
   for (let i = 0; i < runs.length; i += 2) {
     const code = runs[i]!;
     const count = runs[i + 1]!;
     if (!Number.isInteger(code) || code < 0 || code > 127 || !Number.isInteger(count) || count < 1)
-      throw new RangeError(`${what}: pair ${i / 2} = [${code}, ${count}] should be [code 0..127, count >= 1]`);
-    if (k + count > frames) throw new RangeError(`${what} cover more than frames=${frames}`);
+      throw new InputError(`${what}: pair ${i / 2} = [${code}, ${count}] should be [code 0..127, count >= 1]`);
+    if (k + count > frames) throw new InputError(`${what} cover more than frames=${frames}`);
     out.fill(code, k, k + count);
     k += count;
   }
-  if (k !== frames) throw new RangeError(`${what} cover ${k} frames, expected frames=${frames}`);
+  if (k !== frames) throw new InputError(`${what} cover ${k} frames, expected frames=${frames}`);
   return out;
 }
 
@@ -60,6 +60,7 @@ export function truthToJson(truth: GroundTruth): string {
     `  "laneChanges": ${block(truth.laneChanges)},\n` +
     `  "cutIns": ${block(truth.cutIns)},\n` +
     `  "planted": ${block(truth.planted)},\n` +
+    (truth.markingRiders ? `  "markingRiders": ${JSON.stringify(truth.markingRiders)},\n` : "") +
     `  "tracks": ${block(tracks)}\n` +
     "}\n"
   );
@@ -105,13 +106,19 @@ export function truthFromJson(text: string, file?: string): GroundTruth {
       throw new InputError((e as Error).message, { file, column: `tracks[${i}]` });
     }
   });
-  return {
+  const truth: GroundTruth = {
     tracks,
     laneChanges: o.laneChanges as TruthLaneChange[],
     cutIns: o.cutIns as TruthCutIn[],
     planted: o.planted as PlantedEvent[],
     definitions: o.definitions as Record<string, number>,
   };
+  if (o.markingRiders !== undefined) {
+    if (!Array.isArray(o.markingRiders) || !o.markingRiders.every((v) => Number.isInteger(v)))
+      throw new InputError(`field "markingRiders" should be an array of track ids`, { file, column: "markingRiders" });
+    truth.markingRiders = o.markingRiders as number[];
+  }
+  return truth;
 }
 
 /** Load a truth.json written by writeGeneratedTraffic. */

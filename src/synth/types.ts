@@ -18,6 +18,13 @@ export interface TruthLaneChange {
    * or left the observed section, or the recording started or ended, during the movement).
    */
   partial?: boolean;
+  /** Lateral profile; written only when the generator's variety options (issue 11) are on. */
+  profile?: "minimum-jerk" | "constant-speed" | "sinusoidal";
+  /**
+   * Variety case (issue 11): first or second change of a double lane change, or a change started
+   * just before the section's edge so that the vehicle enters or leaves mid-maneuver.
+   */
+  case?: "double-first" | "double-second" | "edge";
 }
 
 /**
@@ -62,4 +69,9 @@ export interface GroundTruth {
   planted: PlantedEvent[];
   /** The parameters of the label definitions (thresholds, cutInMaxGap …) so that a detector can be judged fairly. */
   definitions: Record<string, number>;
+  /**
+   * Tracks of vehicles that drift onto a lane marking, ride it and drift back without changing lane
+   * (variety option markingRiderShare; absent when off). Any lane change detected on them is false.
+   */
+  markingRiders?: number[];
 }

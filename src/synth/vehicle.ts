@@ -57,6 +57,20 @@ export class Vehicle {
   crossed = false;
   /** Index into the simulator's lane-change log. */
   lcIndex = -1;
+  /** Profile of the lane change in progress (ShapeCode: 0 minimum-jerk, 1 constant speed, 2 half-cosine). */
+  lcShape: 0 | 1 | 2 = 0;
+  /** Double lane change: lane of the second change (-1 none), its pause (ms) and due time (ms). */
+  secondTo = -1;
+  secondPauseMs = 0;
+  secondAtMs = -1;
+  /** Marking ride: side of the lane whose marking is ridden (+1 left, −1 right, 0 none) and its times (ms). */
+  rideSide = 0;
+  /** Chosen at creation to ride a marking once it has entered a lane. */
+  rider = false;
+  rideStartMs = 0;
+  rideEndMs = 0;
+  /** Edge lane change: start one once x reaches this (m); NaN = none. */
+  edgeTriggerX = Number.NaN;
   nextDecisionMs = 0;
   noChangeUntilMs = 0;
 

@@ -6,6 +6,7 @@ import { sha256File, sha256Text, writeFileAtomic } from "../core/io.js";
 import { VERSION } from "../core/version.js";
 import type { GeneratedTraffic } from "./generateTraffic.js";
 import { truthToJson } from "./truthFile.js";
+import { recordedOptions } from "./options.js";
 
 export type TrafficFileFormat = "csv" | "parquet";
 
@@ -239,7 +240,7 @@ export async function writeGeneratedTraffic(dir: string, traffic: GeneratedTraff
       rows: s.rows,
       duration: s.duration,
     },
-    options: traffic.options,
+    options: recordedOptions(traffic.options),
     warnings: traffic.warnings,
   };
   const metaPath = join(dir, "meta.json");

@@ -62,7 +62,7 @@ export const assignCommand: Command = {
     const listMax = numberOption("list", values.list, { integer: true, min: 0 }) ?? 20;
     const modelPath = existsSync(planDir) && statSync(planDir).isDirectory() ? join(planDir, "model.json") : planDir;
     const model = await loadClusteringModel(modelPath);
-    const readOptions = await recordingOptions(values);
+    const readOptions = await recordingOptions(values, files.length);
     const display = progressDisplay(process.stderr, Boolean(values.quiet));
     const progress: Progress = display.progress;
     try {
@@ -75,6 +75,7 @@ export const assignCommand: Command = {
         scene: ex.scene as PipelineOptions["scene"],
         scenario: ex.scenario as PipelineOptions["scenario"],
         embedding: ex.embedding as PipelineOptions["embedding"],
+        measure: ex.measure as PipelineOptions["measure"],
       };
       const weightBy = ex.weightBy === "hours" ? "hours" : "km";
       const recs = [];

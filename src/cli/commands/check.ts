@@ -28,7 +28,7 @@ export const checkCommand: Command = {
       allowPositionals: true,
     });
     if (positionals.length === 0) throw new UsageError("give at least one tracks file (CSV or Parquet)");
-    const base = await recordingOptions(values);
+    const base = await recordingOptions(values, positionals.length);
     for (const file of positionals) {
       const display = progressDisplay(process.stderr, values.quiet);
       const rec = await readRecording(file, { ...base, progress: display.progress });
@@ -49,6 +49,8 @@ export const checkCommand: Command = {
           `${rec.tracks.length} tracks, ${rows.toLocaleString("en")} rows, ${km.toFixed(1)} vehicle-km (along the road), ${(seconds / 3600).toFixed(2)} vehicle-hours; ` +
           `${rec.rejected.length} rejected`,
       );
+      const cond = Object.entries(rec.road.conditions ?? {});
+      if (cond.length > 0) console.log(`  conditions: ${cond.map(([k, v]) => `${k} ${v}`).join(", ")}`);
       for (const r of rec.rejected) console.log(`  rejected track ${r.trackId} (${r.rows} rows)${r.row !== undefined ? ` at row ${r.row}` : ""}: ${r.reason}`);
       for (const w of rec.warnings) console.log(`  warning: ${w}`);
       console.log(`  sha256 ${rec.checksum}`);

@@ -1,0 +1,26 @@
+/** The player for what roadsieve writes (OpenSCENARIO 1.2 / OpenDRIVE 1.6 subset) and fidelity measures. */
+export { parseXml, xmlInputError } from "./parseXml.js";
+export type { XmlElement } from "./parseXml.js";
+export { readOpenDrive, readOpenDriveText } from "./readOpenDrive.js";
+export type { PlayerRoad } from "./readOpenDrive.js";
+export { readOpenScenario, parseScenarioText } from "./readOpenScenario.js";
+export type { ReadScenarioOptions } from "./readOpenScenario.js";
+export type { ScenarioModel, ActionDef, PositionDef, ConditionDef, TriggerDef, Dynamics, DynamicsShape, EntityDef, EventDef, ActDef, Rule } from "./scenarioModel.js";
+export { simulateScenario } from "./simulateScenario.js";
+export type { SimulateOptions, SimulationRun, EgoOutcome, EgoMode } from "./simulateScenario.js";
+export { resolveDriver } from "./referenceDriver.js";
+export type { ReferenceDriver, ReferenceDriverOptions } from "./referenceDriver.js";
+export { chainView, egoSeries } from "./egoSeries.js";
+export type { ChainView, EgoSeries } from "./egoSeries.js";
+export { replayFidelity } from "./replayFidelity.js";
+export type { ReplayFidelity } from "./replayFidelity.js";
+export { FIDELITY_TARGETS, FIDELITY_CSV_COLUMNS, fidelityBlock, fidelityCsv, withinTargets } from "./fidelityTable.js";
+export type { FidelityRow } from "./fidelityTable.js";
+export { assignBack, nearestRepresentative } from "./assignBack.js";
+export type { AssignBackItem, AssignBackResult } from "./assignBack.js";
+export { resimPlanFolder } from "./resimPlan.js";
+export type { ResimPlanOptions, ResimPlanResult } from "./resimPlan.js";
+export { measureTemplateParameters, templateTolerance } from "./measureTemplateParameters.js";
+export { templateFidelity } from "./templateFidelity.js";
+export type { TemplateFidelityRow } from "./templateFidelity.js";
+export { attachFidelity } from "./attachFidelity.js";
