@@ -15,7 +15,7 @@ import { compensatedSum } from "../exposure/compensatedSum.js";
 import { scenarioWeights } from "../exposure/sampleWeights.js";
 import { extractRecording, type RecordingSummary } from "../pipeline/extractRecording.js";
 import { mergeScenarioSets } from "../pipeline/mergeScenarioSets.js";
-import type { PipelineOptions } from "../pipeline/options.js";
+import { extractionOptionsOf } from "../pipeline/options.js";
 import { checkDistinctIds } from "../pipeline/planCatalogue.js";
 import type { Recording } from "../recording/types.js";
 import { scenarioCategories, type CategoryKind } from "../catalogue/scenarioCategories.js";
@@ -100,15 +100,8 @@ export async function addRecordings(planDir: string, recordings: Recording[], op
   for (const r of recordings)
     if (known.has(r.id)) throw new InputError(`recording id "${r.id}" is already in the plan; give the new recording its own id (readRecording option id, CLI --id)`, { file: r.source, value: r.id });
   const warnings: string[] = [];
-  const ex = (model.extraction ?? {}) as Record<string, unknown>;
   if (model.extraction === null) warnings.push("the model records no extraction options; the new recordings are cut and embedded with the defaults");
-  const opts: PipelineOptions = {
-    maneuvers: ex.maneuvers as PipelineOptions["maneuvers"],
-    scene: ex.scene as PipelineOptions["scene"],
-    scenario: ex.scenario as PipelineOptions["scenario"],
-    embedding: ex.embedding as PipelineOptions["embedding"],
-  };
-  const weightBy = ex.weightBy === "hours" ? "hours" : "km";
+  const { options: opts, weightBy } = extractionOptionsOf(model.extraction);
   const summaries: RecordingSummary[] = [];
   const sets = recordings.map((rec) => {
     const x = extractRecording(rec, opts, options.progress);

@@ -103,3 +103,22 @@ export function resolvePipelineOptions(o: PipelineOptions = {}): ResolvedPipelin
     logical: o.logical ?? {},
   };
 }
+
+/**
+ * The options a plan's scenarios were cut, measured and embedded with, as its clustering model
+ * records them (model.json "extraction"), so that new recordings are extracted exactly alike
+ * (assign, add, resim). Null when the model records none: the defaults apply.
+ */
+export function extractionOptionsOf(extraction: Record<string, unknown> | null): { options: PipelineOptions; weightBy: "km" | "hours" } {
+  const ex = extraction ?? {};
+  return {
+    options: {
+      maneuvers: ex.maneuvers as PipelineOptions["maneuvers"],
+      scene: ex.scene as PipelineOptions["scene"],
+      scenario: ex.scenario as PipelineOptions["scenario"],
+      embedding: ex.embedding as PipelineOptions["embedding"],
+      measure: ex.measure as PipelineOptions["measure"],
+    },
+    weightBy: ex.weightBy === "hours" ? "hours" : "km",
+  };
+}

@@ -11,7 +11,7 @@ import { loadClusteringModel } from "../cluster/clusteringModel.js";
 import { assignLogicalScenarios, logicalModelFromJSON } from "../logical/assignLogicalScenarios.js";
 import type { LogicalModel } from "../logical/fitLogicalScenarios.js";
 import { extractRecording } from "../pipeline/extractRecording.js";
-import type { PipelineOptions } from "../pipeline/options.js";
+import { extractionOptionsOf, type PipelineOptions } from "../pipeline/options.js";
 import { readRecording } from "../recording/readRecording.js";
 import type { Recording } from "../recording/types.js";
 import { tracksCsv } from "../recording/writeTracks.js";
@@ -103,13 +103,7 @@ async function logicalModelOf(planDir: string): Promise<{ model: LogicalModel; o
   if (!existsSync(file)) return null;
   const m = await loadClusteringModel(file);
   if (m.logical === undefined) return null;
-  const ex = (m.extraction ?? {}) as Record<string, unknown>;
-  const options: PipelineOptions = {
-    maneuvers: ex.maneuvers as PipelineOptions["maneuvers"],
-    scene: ex.scene as PipelineOptions["scene"],
-    scenario: ex.scenario as PipelineOptions["scenario"],
-    measure: ex.measure as PipelineOptions["measure"],
-  };
+  const { options } = extractionOptionsOf(m.extraction);
   return { model: logicalModelFromJSON(JSON.stringify(m.logical), file), options };
 }
 

@@ -9,7 +9,7 @@ import { embedScenarios } from "../../embed/features.js";
 import { scenarioWeights } from "../../exposure/sampleWeights.js";
 import { extractRecording } from "../../pipeline/extractRecording.js";
 import { mergeScenarioSets } from "../../pipeline/mergeScenarioSets.js";
-import type { PipelineOptions } from "../../pipeline/options.js";
+import { extractionOptionsOf } from "../../pipeline/options.js";
 import { checkDistinctIds } from "../../pipeline/planCatalogue.js";
 import { readRecording } from "../../recording/readRecording.js";
 import type { ScenarioSet } from "../../scenario/types.js";
@@ -68,16 +68,8 @@ export const assignCommand: Command = {
     try {
       const warnings: string[] = [];
       // Cut and embed exactly as the plan did; a model written outside the pipeline has no record of it.
-      const ex = (model.extraction ?? {}) as Record<string, unknown>;
       if (model.extraction === null) warnings.push("the model records no extraction options; the new recordings are cut and embedded with the defaults");
-      const opts: PipelineOptions = {
-        maneuvers: ex.maneuvers as PipelineOptions["maneuvers"],
-        scene: ex.scene as PipelineOptions["scene"],
-        scenario: ex.scenario as PipelineOptions["scenario"],
-        embedding: ex.embedding as PipelineOptions["embedding"],
-        measure: ex.measure as PipelineOptions["measure"],
-      };
-      const weightBy = ex.weightBy === "hours" ? "hours" : "km";
+      const { options: opts, weightBy } = extractionOptionsOf(model.extraction);
       const recs = [];
       for (const f of files) recs.push(await readRecording(f, { ...readOptions, progress }));
       checkDistinctIds(recs);
