@@ -1,6 +1,5 @@
 /**
- * `npm run bench -- cluster [--quick] [--skip-dbscan32]` (or `--kernels [--repeat N]`, see
- * `kernelRatios`): roadsieve's clustering engine against
+ * `npm run bench -- cluster [--quick] [--skip-dbscan32]`: roadsieve's clustering engine against
  * scikit-learn (Debian's /usr/bin/python3, same data, same initial centres, timed inside Python around
  * fit only) and the JavaScript references (ml-kmeans, density-clustering), all in one run so the
  * ratios compare like with like. Prints a readable log; the last line is one JSON object.
@@ -9,7 +8,7 @@
  * d = 32 and 64 centres for k-means (k = 64), 10 centres for DBSCAN.
  */
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { kmeans as mlKmeans } from "ml-kmeans";
@@ -134,6 +133,7 @@ info = threadpoolctl.threadpool_info()
 out['blas'] = ';'.join(i.get('internal_api', '') + ':' + str(i.get('architecture', '')) + ':' + str(i.get('num_threads')) for i in info)
 print(json.dumps(out))
 `);
+    const { readFileSync } = await import("node:fs");
     const buf = readFileSync(join(py.dir, "L.bin"));
     const skLabels = new Float64Array(buf.buffer, buf.byteOffset, n);
     const best = Math.min(sk.lloydMs as number, sk.elkanMs as number);
@@ -174,151 +174,7 @@ print(json.dumps(out))
   return f;
 }
 
-function median(a: number[]): number {
-  const s = [...a].sort((x, y) => x - y);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
-}
-
-const r3 = (x: number): number => Math.round(x * 1000) / 1000;
-
-/**
- * `--kernels [--repeat N]` (default 5): only the four speed targets (k-means 100k and 1M × 32, k = 64;
- * DBSCAN 100k at d = 8 and d = 32), each repeated N times with roadsieve and scikit-learn alternating
- * (odd repetitions run scikit-learn first), so that a loaded machine slows both sides alike. Each
- * repetition gives one ratio (roadsieve / scikit-learn's best algorithm, both timed around the fit
- * only); the median and the range of the ratios are printed. Labels are compared every time.
- */
-async function kernelRatios(args: string[], py: Py, log: (s: string) => void): Promise<Figures> {
-  const at = args.indexOf("--repeat");
-  const reps = at >= 0 ? Number(args[at + 1]) : 5;
-  if (!Number.isInteger(reps) || reps < 1) throw new Error(`--repeat needs a positive integer, got ${args[at + 1]}`);
-  const out: Figures = { repeat: reps };
-  const summarise = (name: string, ratios: number[], ours: number[], theirs: number[], extra: Figures): void => {
-    const f: Figures = {
-      ...extra,
-      ratioMedian: r3(median(ratios)),
-      ratioMin: r3(Math.min(...ratios)),
-      ratioMax: r3(Math.max(...ratios)),
-      ratios: ratios.map(r3).join(" "),
-      roadsieveMsMedian: Math.round(median(ours)),
-      sklearnBestMsMedian: Math.round(median(theirs)),
-    };
-    out[name] = f;
-    log(`${name}: ratio median ${f.ratioMedian}× (range ${f.ratioMin}–${f.ratioMax}; ${f.ratios}); roadsieve ${f.roadsieveMsMedian} ms, scikit-learn best ${f.sklearnBestMsMedian} ms (medians)`);
-  };
-  for (const n of [100_000, 1_000_000]) {
-    const d = 32;
-    const k = 64;
-    const { X } = makeBlobs(n, d, k, { seed: 1, shared: true });
-    const init = kmeansPlusPlus(X, k, { seed: 1, sampleSize: 20_000 });
-    const warm = Math.min(n, 60_000);
-    kmeans({ data: X.data.subarray(0, warm * d), rows: warm, cols: d }, k, { init, maxIter: 3 });
-    py.write("X.bin", X.data);
-    py.write("C.bin", init.data);
-    const ratios: number[] = [];
-    const ours: number[] = [];
-    const theirs: number[] = [];
-    let mism = 0;
-    let threads = 0;
-    for (let rep = 0; rep < reps; rep++) {
-      const sk = (): { ms: number; labels: Float64Array } => {
-        const s = py.run<{ lloydMs: number; elkanMs: number }>(`
-from sklearn.cluster import KMeans
-X = np.fromfile(DIR + '/X.bin').reshape(${n}, ${d}); C = np.fromfile(DIR + '/C.bin').reshape(${k}, ${d})
-out = {}
-for alg in ['lloyd', 'elkan']:
-    t = time.perf_counter(); km = KMeans(n_clusters=${k}, init=C, n_init=1, algorithm=alg).fit(X); out[alg + 'Ms'] = (time.perf_counter() - t) * 1000
-    if alg == 'elkan': np.asarray(km.labels_, dtype='<f8').tofile(DIR + '/L.bin')
-print(json.dumps(out))
-`);
-        const buf = readFileSync(join(py.dir, "L.bin"));
-        return { ms: Math.min(s.lloydMs, s.elkanMs), labels: new Float64Array(buf.buffer, buf.byteOffset, n) };
-      };
-      const mine = (): { ms: number; labels: Int32Array } => {
-        const t = performance.now();
-        const r = kmeans(X, k, { init });
-        const el = performance.now() - t;
-        threads = r.threads;
-        return { ms: el, labels: r.labels };
-      };
-      let a: { ms: number; labels: Int32Array };
-      let b: { ms: number; labels: Float64Array };
-      if (rep % 2 === 0) {
-        a = mine();
-        b = sk();
-      } else {
-        b = sk();
-        a = mine();
-      }
-      mism += mismatches(a.labels, b.labels);
-      ours.push(a.ms);
-      theirs.push(b.ms);
-      ratios.push(a.ms / b.ms);
-    }
-    summarise(`kmeans${n / 1000}k`, ratios, ours, theirs, { n, d, k, threads, labelMismatchesVsSklearnAllReps: mism });
-  }
-  for (const d of [8, 32]) {
-    const n = 100_000;
-    const { X } = makeBlobs(n, d, 10, { seed: 1 });
-    const eps = suggestEps(X, { minPts: 5, sampleSize: 2000, seed: 1 }).eps;
-    dbscan({ data: X.data.subarray(0, 20_000 * d), rows: 20_000, cols: d }, { eps, minPts: 5 }); // warm-up
-    py.write("B.bin", X.data);
-    const ratios: number[] = [];
-    const ours: number[] = [];
-    const theirs: number[] = [];
-    let mism = 0;
-    for (let rep = 0; rep < reps; rep++) {
-      const sk = (): { ms: number; labels: number[] } =>
-        py.run<{ ms: number; labels: number[] }>(`
-from sklearn.cluster import DBSCAN
-X = np.fromfile(DIR + '/B.bin').reshape(${n}, ${d})
-t = time.perf_counter(); db = DBSCAN(eps=${eps}, min_samples=5).fit(X); ms = (time.perf_counter() - t) * 1000
-print(json.dumps({'ms': ms, 'labels': db.labels_.tolist()}))
-`);
-      const mine = (): { ms: number; labels: Int32Array } => {
-        const t = performance.now();
-        const r = dbscan(X, { eps, minPts: 5 });
-        return { ms: performance.now() - t, labels: r.labels };
-      };
-      let a: { ms: number; labels: Int32Array };
-      let b: { ms: number; labels: number[] };
-      if (rep % 2 === 0) {
-        a = mine();
-        b = sk();
-      } else {
-        b = sk();
-        a = mine();
-      }
-      mism += mismatches(a.labels, b.labels);
-      ours.push(a.ms);
-      theirs.push(b.ms);
-      ratios.push(a.ms / b.ms);
-    }
-    summarise(`dbscanD${d}`, ratios, ours, theirs, { n, d, eps, minPts: 5, labelMismatchesVsSklearnAllReps: mism });
-  }
-  return out;
-}
-
 async function main(args: string[]): Promise<void> {
-  if (args.includes("--kernels")) {
-    const log = (s: string): void => console.log(s);
-    const pyMissing = sklearnAvailable();
-    if (pyMissing) throw new Error(`--kernels needs scikit-learn: ${pyMissing}`);
-    const py = new Py();
-    try {
-      const os = await import("node:os");
-      log(`load average at start: ${os.loadavg().map((x) => x.toFixed(1)).join(" ")} on ${os.availableParallelism()} cores`);
-      const f = await kernelRatios(args, py, log);
-      f.benchmark = "cluster --kernels";
-      f.node = process.version;
-      f.loadAverageAtEnd = os.loadavg()[0]!.toFixed(1);
-      console.log(JSON.stringify(f));
-    } finally {
-      py.dispose();
-    }
-    return;
-  }
   const quick = args.includes("--quick");
   const skip32 = args.includes("--skip-dbscan32");
   const log = (s: string): void => console.log(s);

@@ -293,23 +293,3 @@ describe("kmeans options and seeding", () => {
     expect(r.warnings).toContain("did not converge within maxIter=1 iterations");
   });
 });
-
-describe("kmeans first assignment (the half-distance shortcut and its fallback)", () => {
-  it("equals a brute-force nearest-centre assignment on well-separated blobs (shortcut taken) and on exact ties (fallback)", () => {
-    // Source of truth: referenceLloyd above (all k distances per row, lowest index on ties).
-    // Well separated: almost every row is within half the centre gap of its first guess, so the
-    // shortcut decides it; maxIter 1 makes the result depend on the first assignment directly.
-    const { X } = makeBlobs(6000, 16, 20, { seed: 4, std: 0.5, box: 10 });
-    const init = kmeansPlusPlus(X, 20, { seed: 2 });
-    const r = kmeans(X, 20, { init, maxIter: 1, tol: 0 });
-    const ref = referenceLloyd(X, init, 1);
-    expectSameLabels(r.labels, ref.labels);
-    // Exact ties: rows at 0 between centres at -1 and +1 (d = 1) go to the lower index, as the
-    // brute-force argmin does; the shortcut cannot apply (distance = half the gap).
-    const T: Matrix = { data: Float64Array.from([0, 0, -1.2, 1.1, 0, -0.9, 1.3, 0]), rows: 8, cols: 1 };
-    const tInit: Matrix = { data: Float64Array.from([1, -1]), rows: 2, cols: 1 };
-    const t = kmeans(T, 2, { init: tInit, maxIter: 1, tol: 0 });
-    const tRef = referenceLloyd(T, tInit, 1);
-    expectSameLabels(t.labels, tRef.labels);
-  });
-});

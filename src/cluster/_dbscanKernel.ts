@@ -26,30 +26,14 @@ function makeState(bufs, meta) {
   };
 }
 
-// Squared distance from the query to the node's box, or some value > r2 once the partial sum passes
-// r2 (every caller only compares it with r2, or orders two children of which a pruned one is never
-// visited).
-function boxDist2(lo, hi, node, d, Q, qo, r2) {
+function boxDist2(lo, hi, node, d, Q, qo) {
   var bo = node * d, s = 0;
   for (var t = 0; t < d; t++) {
     var v = Q[qo + t], a = lo[bo + t] - v;
-    if (a > 0) { s += a * a; if (s > r2) return s; }
-    else { var b = v - hi[bo + t]; if (b > 0) { s += b * b; if (s > r2) return s; } }
+    if (a > 0) s += a * a;
+    else { var b = v - hi[bo + t]; if (b > 0) s += b * b; }
   }
   return s;
-}
-
-// Squared distance between rows po and qo when it is <= r2, else some value > r2: the terms are
-// added in the same order as a plain loop (so an accepted distance is bit-identical to it), and the
-// loop stops at the first block of 8 features after which the partial sum already exceeds r2. At
-// d = 32 most candidates in a dense region are out after 16-24 features.
-function dist2Within(pts, po, qo, d, r2) {
-  var s = 0, t = 0;
-  for (;;) {
-    var te = t + 8 < d ? t + 8 : d;
-    for (; t < te; t++) { var a = pts[po + t] - pts[qo + t]; s += a * a; }
-    if (t >= d || s > r2) return s;
-  }
 }
 
 function boxMaxDist2(lo, hi, node, d, Q, qo) {
@@ -83,7 +67,8 @@ function opCore(S, ch0, ch1) {
         }
         if (left[node] === -1) {
           for (var p = start[node]; p < end[node]; p++) {
-            var s = dist2Within(pts, p * d, qo, d, r2);
+            var po = p * d, s = 0;
+            for (var t = 0; t < d; t++) { var a = pts[po + t] - pts[qo + t]; s += a * a; }
             nd++;
             if (s <= r2) {
               w += Wt[p];
@@ -95,7 +80,7 @@ function opCore(S, ch0, ch1) {
         } else {
           // The child on the query's side first: neighbours are found sooner.
           var l = left[node], r = right[node];
-          var dl = boxDist2(lo, hi, l, d, pts, qo, r2), dr = boxDist2(lo, hi, r, d, pts, qo, r2);
+          var dl = boxDist2(lo, hi, l, d, pts, qo), dr = boxDist2(lo, hi, r, d, pts, qo);
           if (dl <= dr) { stack[sp] = r; stackD[sp++] = dr; stack[sp] = l; stackD[sp++] = dl; }
           else { stack[sp] = l; stackD[sp++] = dl; stack[sp] = r; stackD[sp++] = dr; }
         }

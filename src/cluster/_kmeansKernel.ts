@@ -29,8 +29,8 @@ function makeState(bufs, meta) {
     CC: view(Float64Array, bufs.CC), half: view(Float64Array, bufs.half), move: view(Float64Array, bufs.move),
     labels: view(Int32Array, bufs.labels), upper: view(Float64Array, bufs.upper), lower: view(Float64Array, bufs.lower),
     sums: view(Float64Array, bufs.sums), wsum: view(Float64Array, bufs.wsum), stats: view(Float64Array, bufs.stats),
-    proj: view(Float64Array, bufs.proj), cproj: view(Float64Array, bufs.cproj),
-    pd2: new Float64Array(meta.k),
+    proj: view(Float64Array, bufs.proj), cproj: view(Float64Array, bufs.cproj), p: meta.p,
+    scratch: new Float64Array(meta.k), pd2: new Float64Array(meta.k), xp: new Float64Array(Math.max(1, meta.p)),
   };
 }
 
@@ -51,49 +51,35 @@ function addRow(sums, so, X, xo, d, w) {
 }
 
 // stats per chunk: [changed labels, distance evaluations, inertia, unused]
-// OP 0: first assignment with bounds, chunk sums from scratch. Each row is first projected on 4
-// orthonormal directions (proj, 4 × d, zero rows when d < 4; cproj = the centres' projections, k × 4): the projected
+// OP 0: first assignment with bounds, chunk sums from scratch. Each row is first projected on p
+// orthonormal directions (proj, p × d; cproj = the centres' projections, k × p): the projected
 // distance is a lower bound on the true one (projection is 1-Lipschitz), so the row starts at the
 // centre nearest in projection and skips every centre whose projected distance already exceeds the
 // best true distance, or that Elkan's centre–centre test rules out.
 function opInit(S, ch0, ch1) {
-  var n = S.n, d = S.d, k = S.k, X = S.X, W = S.W, C = S.C, CC = S.CC, P = S.proj, CP = S.cproj;
+  var n = S.n, d = S.d, k = S.k, X = S.X, W = S.W, C = S.C, CC = S.CC, p = S.p, P = S.proj, CP = S.cproj;
   var labels = S.labels, upper = S.upper, lower = S.lower, sums = S.sums, wsum = S.wsum;
-  var pd2 = S.pd2, half = S.half;
+  var pd2 = S.pd2, xp = S.xp;
   for (var ch = ch0; ch < ch1; ch++) {
     var r0 = ch * S.chunk, r1 = Math.min(n, r0 + S.chunk), so = ch * k * d, wo = ch * k;
     sums.fill(0, so, so + k * d); wsum.fill(0, wo, wo + k);
     var nd = 0;
     for (var i = r0; i < r1; i++) {
       var xo = i * d;
-      // Four directions in one pass over the row (unused directions are zero rows).
-      var x0 = 0, x1 = 0, x2 = 0, x3 = 0;
-      for (var t = 0; t < d; t++) {
-        var xv = X[xo + t];
-        x0 += P[t] * xv; x1 += P[d + t] * xv; x2 += P[2 * d + t] * xv; x3 += P[3 * d + t] * xv;
+      for (var a = 0; a < p; a++) {
+        var po = a * d, s = 0;
+        for (var t = 0; t < d; t++) s += P[po + t] * X[xo + t];
+        xp[a] = s;
       }
       var first = 0, fmin = Infinity;
-      for (var j = 0, co = 0; j < k; j++, co += 4) {
-        var e0 = x0 - CP[co], e1 = x1 - CP[co + 1], e2 = x2 - CP[co + 2], e3 = x3 - CP[co + 3];
-        var q2 = e0 * e0 + e1 * e1 + e2 * e2 + e3 * e3;
+      for (var j = 0; j < k; j++) {
+        var q2 = 0, co = j * p;
+        for (var a2 = 0; a2 < p; a2++) { var e = xp[a2] - CP[co + a2]; q2 += e * e; }
         pd2[j] = q2;
         if (q2 < fmin) { fmin = q2; first = j; }
       }
       var best = first, bsq = dist2(X, xo, C, first * d, d), bd = Math.sqrt(bsq);
       nd++;
-      var w = W === null ? 1 : W[i];
-      // Hamerly's test at the first assignment: d(x, c_j) >= d(c_first, c_j) - bd >= 2 half - bd > bd
-      // for every other centre j, so first is the unique nearest and 2 half - bd a lower bound on
-      // every other distance — no loop over the centres.
-      var hf = half[first];
-      if (bd < hf * (1 - SLACK)) {
-        labels[i] = first;
-        upper[i] = bd;
-        lower[i] = 2 * hf - bd;
-        addRow(sums, so + first * d, X, xo, d, w);
-        wsum[wo + first] += w;
-        continue;
-      }
       // The two smallest per-centre lower bounds (and the index of the smallest), so the bound on
       // the second-nearest centre needs no second pass: it is m1 unless m1 belongs to the winner.
       var m1 = bd, i1 = first, m2 = Infinity, v = 0;
@@ -120,6 +106,7 @@ function opInit(S, ch0, ch1) {
       labels[i] = best;
       upper[i] = bd;
       lower[i] = l;
+      var w = W === null ? 1 : W[i];
       addRow(sums, so + best * d, X, xo, d, w);
       wsum[wo + best] += w;
     }

@@ -4,11 +4,9 @@ import { MessageChannel, Worker, type MessagePort } from "node:worker_threads";
 /**
  * A small synchronous thread team over shared memory. The kernel source (a self-contained script
  * defining `makeState(bufs, meta)` and `OPS`, an array of `(state, chunk0, chunk1) => void`) runs on
- * the main thread and in `threads - 1` eval workers. `run(op)` hands the chunks out one at a time to
- * whichever thread is free (the main thread included), then blocks in Atomics.wait until every chunk
- * is finished — Node allows that on the main thread, which keeps the public API synchronous. On a
- * loaded machine a worker the scheduler runs late simply takes fewer chunks (a static split made the
- * main thread wait for the worker's whole half).
+ * the main thread and in `threads - 1` eval workers. `run(op)` splits the chunks statically (thread
+ * t takes a fixed contiguous range), runs the main thread's share, then blocks in Atomics.wait until
+ * the workers are done — Node allows that on the main thread, which keeps the public API synchronous.
  * Workers are unref'd so they never keep the process alive; `close()` ends them.
  */
 
@@ -36,48 +34,31 @@ function compile(source: string): Kernel {
   return k;
 }
 
-// Control word layout (Int32 view of the pool's shared block):
-//   [0] command = (generation << 3) | op code, read by a worker in one atomic load, so the op and its
-//       generation can never be seen mixed; op codes 0..4 = OPS[code], 5 = take a new job (buffers and
-//       metadata from the message port), 6 = drop the job's buffers, 7 = exit.
-//   [2] acknowledgements of the last control command (5, 6), [3] error flag, [4] workers started,
-//   [7] chunks finished in the current compute op.
-// BigInt64 view, word 4 (bytes 32..39): the claim word = (generation << 36) | (nChunks << 18) | next
-//   chunk. Every thread (the main one too) takes chunks one at a time by compare-and-swap on it; a
-//   worker that wakes late sees another generation there and takes nothing, so nobody waits for a
-//   thread the scheduler has not run yet, and a slow thread simply takes fewer chunks. Each chunk
-//   writes only its own outputs, so who ran it never changes the result.
+// Worker loop. Ops: -1 = exit, -2 = take a new job (buffers and metadata) from the message port,
+// -3 = drop the job's buffers, >= 0 = run OPS[op] on this thread's share of the chunks.
 const WORKER_PRELUDE = String.raw`
 const { workerData, receiveMessageOnPort } = require("node:worker_threads");
 const ctrl = new Int32Array(workerData.ctrl);
-const claim = new BigInt64Array(workerData.ctrl);
 const port = workerData.port;
-let S = null;
+const t = workerData.index;
+let S = null, T = 1;
 Atomics.add(ctrl, 4, 1); Atomics.notify(ctrl, 4);
-let last = 0; // the block starts zeroed; the first command has generation 1
-function claimChunks(gen, OP) {
-  for (;;) {
-    const v = Atomics.load(claim, 4);
-    if (Number(v >> 36n) !== gen) return;
-    const nc = Number((v >> 18n) & 0x3ffffn), c = Number(v & 0x3ffffn);
-    if (c >= nc) return;
-    if (Atomics.compareExchange(claim, 4, v, v + 1n) !== v) continue;
-    try { OP(S, c, c + 1); } catch (e) { Atomics.store(ctrl, 3, 1); }
-    Atomics.add(ctrl, 7, 1); Atomics.notify(ctrl, 7);
-  }
-}
+let gen = 0;
 for (;;) {
-  Atomics.wait(ctrl, 0, last);
-  const cmd = Atomics.load(ctrl, 0);
-  last = cmd;
-  const op = cmd & 7, gen = cmd >>> 3;
-  if (op === 7) break;
-  if (op < 5) { if (S !== null) claimChunks(gen, OPS[op]); continue; }
+  Atomics.wait(ctrl, 0, gen);
+  gen = Atomics.load(ctrl, 0);
+  const op = Atomics.load(ctrl, 1);
+  if (op === -1) break;
   try {
-    if (op === 5) {
+    if (op === -2) {
       const m = receiveMessageOnPort(port).message;
-      S = makeState(m.bufs, m.meta);
-    } else S = null;
+      S = makeState(m.bufs, m.meta); T = m.threads;
+    } else if (op === -3) {
+      S = null;
+    } else {
+      const nc = Atomics.load(ctrl, 5);
+      OPS[op](S, Math.floor((nc * t) / T), Math.floor((nc * (t + 1)) / T));
+    }
   } catch (e) { Atomics.store(ctrl, 3, 1); }
   Atomics.add(ctrl, 2, 1); Atomics.notify(ctrl, 2);
 }
@@ -95,15 +76,9 @@ interface PoolWorker {
  */
 interface Pool {
   ctrl: Int32Array;
-  claim: BigInt64Array;
-  /** Generation of the last command (27 bits, wraps). */
-  gen: number;
   workers: PoolWorker[];
   busy: boolean;
 }
-
-// 27 bits: the generation sits in bits 36..62 of the (signed) claim word and in bits 3..29 of the command.
-const GEN_MASK = (1 << 27) - 1;
 const pools = new Map<string, Pool>();
 
 /** Number of threads "auto" stands for. */
@@ -150,8 +125,8 @@ export class Team {
       try {
         const pool = borrowPool(source, threads - 1);
         this.pool = pool;
-        for (let t = 0; t < threads - 1; t++) pool.workers[t]!.port.postMessage({ bufs, meta });
-        this.control(5);
+        for (let t = 0; t < threads - 1; t++) pool.workers[t]!.port.postMessage({ bufs, meta, threads });
+        this.signal(-2, 0, threads);
       } catch (e) {
         problem = `worker threads unavailable (${(e as Error).message}); ran on one thread`;
         if (this.pool) {
@@ -165,59 +140,33 @@ export class Team {
     this.threads = problem === undefined ? threads : 1;
   }
 
-  /**
-   * Run one kernel op over chunks [0, nChunks). Chunks are taken one at a time by whichever thread
-   * is free (see the claim word above); the main thread takes part and returns when every chunk is
-   * finished.
-   */
+  /** Run one kernel op over chunks [0, nChunks), split statically over the threads. */
   run(op: number, nChunks: number): void {
     if (this.closed) throw new Error("Team.run after close(): create a new Team");
-    const fn = this.kernel.OPS[op]!;
-    if (this.threads === 1) {
-      fn(this.state, 0, nChunks);
+    const T = this.threads;
+    if (T === 1) {
+      this.kernel.OPS[op]!(this.state, 0, nChunks);
       return;
     }
-    if (nChunks >= 1 << 18) throw new Error(`Team.run: ${nChunks} chunks, at most ${(1 << 18) - 1}`);
-    const pool = this.pool!;
-    const c = pool.ctrl;
-    const gen = (pool.gen = (pool.gen + 1) & GEN_MASK);
-    Atomics.store(c, 3, 0);
-    Atomics.store(c, 7, 0);
-    // The claim word first, then the command: a worker that reads the new command finds its chunks.
-    Atomics.store(pool.claim, 4, (BigInt(gen) << 36n) | (BigInt(nChunks) << 18n));
-    Atomics.store(c, 0, (gen << 3) | op);
-    Atomics.notify(c, 0);
-    const claim = pool.claim;
-    for (;;) {
-      const v = Atomics.load(claim, 4);
-      const next = Number(v & 0x3ffffn);
-      if (next >= nChunks) break;
-      if (Atomics.compareExchange(claim, 4, v, v + 1n) !== v) continue;
-      fn(this.state, next, next + 1);
-      Atomics.add(c, 7, 1);
-    }
-    let v: number;
-    while ((v = Atomics.load(c, 7)) < nChunks) {
-      if (Atomics.wait(c, 7, v, 600_000) === "timed-out") throw new Error("worker thread did not answer within 600 s");
-    }
-    if (Atomics.load(c, 3) !== 0) throw new Error("a worker thread failed while running a kernel op");
+    this.signal(op, nChunks, T, () => this.kernel.OPS[op]!(this.state, 0, Math.floor(nChunks / T)));
   }
 
-  /** A control command (5 = new job, 6 = drop job) that every worker acknowledges. */
-  private control(op: 5 | 6): void {
-    const pool = this.pool!;
-    const c = pool.ctrl;
-    const gen = (pool.gen = (pool.gen + 1) & GEN_MASK);
+  /** Post an op to the pool's first `T - 1` workers, run `own` meanwhile, wait for all of them. */
+  private signal(op: number, nChunks: number, T: number, own?: () => void): void {
+    const c = this.pool!.ctrl;
     Atomics.store(c, 2, 0);
     Atomics.store(c, 3, 0);
-    Atomics.store(c, 0, (gen << 3) | op);
+    Atomics.store(c, 1, op);
+    Atomics.store(c, 5, nChunks);
+    Atomics.add(c, 0, 1);
     Atomics.notify(c, 0);
-    const expected = pool.workers.length;
+    own?.();
+    const expected = this.pool!.workers.length;
     let v: number;
     while ((v = Atomics.load(c, 2)) < expected) {
       if (Atomics.wait(c, 2, v, 600_000) === "timed-out") throw new Error("worker thread did not answer within 600 s");
     }
-    if (Atomics.load(c, 3) !== 0) throw new Error("a worker thread failed to take its job");
+    if (Atomics.load(c, 3) !== 0) throw new Error("a worker thread failed while running a kernel op");
   }
 
   close(): void {
@@ -225,7 +174,7 @@ export class Team {
     this.closed = true;
     if (this.pool) {
       try {
-        this.control(6);
+        this.signal(-3, 0, this.threads);
       } finally {
         this.pool.busy = false;
         // A temporary pool (the shared one was busy) is not kept.
@@ -251,9 +200,8 @@ function borrowPool(source: string, workers: number): Pool {
 }
 
 function startPool(source: string, workers: number, keep: boolean): Pool {
-  const block = new SharedArrayBuffer(64);
-  const ctrl = new Int32Array(block);
-  const pool: Pool = { ctrl, claim: new BigInt64Array(block), gen: 0, workers: [], busy: true };
+  const ctrl = new Int32Array(new SharedArrayBuffer(64));
+  const pool: Pool = { ctrl, workers: [], busy: true };
   try {
     for (let t = 1; t <= workers; t++) {
       const { port1, port2 } = new MessageChannel();
@@ -290,8 +238,8 @@ function discardPool(source: string): void {
 }
 
 function stopPool(pool: Pool): void {
-  pool.gen = (pool.gen + 1) & GEN_MASK;
-  Atomics.store(pool.ctrl, 0, (pool.gen << 3) | 7);
+  Atomics.store(pool.ctrl, 1, -1);
+  Atomics.add(pool.ctrl, 0, 1);
   Atomics.notify(pool.ctrl, 0);
   for (const w of pool.workers) {
     w.port.close();

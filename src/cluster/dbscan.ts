@@ -9,48 +9,6 @@ import { Team, autoThreads, ref, sharedF64, sharedI32 } from "./_team.js";
 /** Below this many rows the core test runs on one thread. */
 export const MIN_ROWS_FOR_DBSCAN_THREADS = 20_000;
 
-/**
- * Squared distance between rows at po and qo of `pts` when it is <= r2, else some value > r2: terms
- * are added in a plain loop's order (an accepted distance is bit-identical), stopping after the first
- * block of 8 features whose partial sum exceeds r2 (the sum only grows). Same as the kernel's.
- */
-function dist2Within(pts: Float64Array, po: number, qo: number, d: number, r2: number): number {
-  let s = 0;
-  let t = 0;
-  for (;;) {
-    const te = t + 8 < d ? t + 8 : d;
-    for (; t < te; t++) {
-      const a = pts[po + t]! - pts[qo + t]!;
-      s += a * a;
-    }
-    if (t >= d || s > r2) return s;
-  }
-}
-
-/** The node's box distance when it is <= r2, else some value > r2 (for pruning only). */
-function boxDist2Within(tree: KdTree, node: number, Q: Float64Array, qo: number, r2: number): number {
-  const d = tree.d;
-  const lo = tree.lo;
-  const hi = tree.hi;
-  const bo = node * d;
-  let s = 0;
-  for (let t = 0; t < d; t++) {
-    const v = Q[qo + t]!;
-    const a = lo[bo + t]! - v;
-    if (a > 0) {
-      s += a * a;
-      if (s > r2) return s;
-    } else {
-      const b = v - hi[bo + t]!;
-      if (b > 0) {
-        s += b * b;
-        if (s > r2) return s;
-      }
-    }
-  }
-  return s;
-}
-
 /** Tree positions of every row within eps² = r2 of tree position q (inclusive). */
 function fullNeighbours(tree: KdTree, q: number, r2: number, out: number[]): void {
   const d = tree.d;
@@ -292,7 +250,7 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
     while (sp > 0) {
       const node = stack[--sp]!;
       if (settled[node] && (rep[node]! < 0 || find(rep[node]!) === rq)) continue;
-      if (boxDist2Within(tree, node, pts, qo, r2) > r2) continue;
+      if (tree.boxDist2(node, pts, qo) > r2) continue;
       if (tree.boxMaxDist2(node, pts, qo) <= r2) {
         for (let p = start[node]!; p < end[node]!; p++) if (core[p]) rq = union(p, q);
         settled[node] = 1;
@@ -309,8 +267,14 @@ export function dbscan(X: Matrix, options: DbscanOptions): DbscanResult {
           if (p !== q) {
             const rp = find(p);
             if (rp !== rq) {
+              const po = p * d;
+              let s = 0;
+              for (let t = 0; t < d; t++) {
+                const a = pts[po + t]! - pts[qo + t]!;
+                s += a * a;
+              }
               nd++;
-              if (dist2Within(pts, p * d, qo, d, r2) <= r2) rq = union(p, q);
+              if (s <= r2) rq = union(p, q);
             }
           }
         }

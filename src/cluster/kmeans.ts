@@ -220,7 +220,7 @@ export function kmeans(X: Matrix, k: number, options: KMeansOptions = {}): KMean
     cproj: sharedF64(k * PROJ_DIMS, shared),
   };
   const refs = Object.fromEntries(Object.entries(bufs).map(([name, a]) => [name, ref(a)]));
-  const team = new Team(KMEANS_KERNEL_SOURCE, refs, { n, d, k, chunk, nChunks }, o.threads);
+  const team = new Team(KMEANS_KERNEL_SOURCE, refs, { n, d, k, chunk, nChunks, p: Math.min(PROJ_DIMS, d) }, o.threads);
   if (team.startupProblem) warnings.push(team.startupProblem);
 
   let best: Omit<KMeansResult, "nInit" | "tolAbsolute" | "threads" | "distanceEvaluations" | "warnings"> | null = null;
@@ -436,7 +436,7 @@ function projectionBasis(b: Bufs, k: number, d: number): void {
     for (let a = 0; a < p; a++) {
       let s = 0;
       for (let t = 0; t < d; t++) s += b.proj[a * d + t]! * C[j * d + t]!;
-      b.cproj[j * PROJ_DIMS + a] = s;
+      b.cproj[j * p + a] = s;
     }
 }
 
